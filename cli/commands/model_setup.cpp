@@ -1,0 +1,166 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+#include "cli/commands/model_setup.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+
+namespace voidsign::cli {
+
+namespace {
+
+mesh::VoidOutline outline_of(const Void& v) {
+  mesh::VoidOutline o;
+  o.cx = v.x;
+  o.cz = -v.depth;
+  o.angle_deg = v.angle;
+  switch (v.shape) {
+    case Void::Shape::circle:
+      o.kind = mesh::VoidOutline::Kind::circle;
+      o.radius = v.radius;
+      break;
+    case Void::Shape::ellipse:
+      o.kind = mesh::VoidOutline::Kind::ellipse;
+      o.a = v.axes[0];
+      o.b = v.axes[1];
+      break;
+    case Void::Shape::rectangle:
+      o.kind = mesh::VoidOutline::Kind::rectangle;
+      o.width = v.width;
+      o.height = v.height;
+      break;
+    case Void::Shape::polygon:
+      o.kind = mesh::VoidOutline::Kind::polygon;
+      for (const auto& p : v.points) o.points.push_back({p[0], -p[1]});
+      break;
+  }
+  return o;
+}
+
+// Points on the outline, for extents (polygons exactly, curves sampled).
+std::vector<std::array<double, 2>> outline_points(const Void& v) {
+  std::vector<std::array<double, 2>> pts;
+  const double c = std::cos(v.angle * std::numbers::pi / 180), s = std::sin(v.angle * std::numbers::pi / 180);
+  auto add = [&](double lx, double lz) { pts.push_back({v.x + c * lx - s * lz, -v.depth + s * lx + c * lz}); };
+  switch (v.shape) {
+    case Void::Shape::circle:
+    case Void::Shape::ellipse: {
+      const double a = v.shape == Void::Shape::circle ? v.radius : v.axes[0];
+      const double b = v.shape == Void::Shape::circle ? v.radius : v.axes[1];
+      for (int i = 0; i < 720; ++i) {
+        const double t = 2 * std::numbers::pi * i / 720;
+        add(a * std::cos(t), b * std::sin(t));
+      }
+      break;
+    }
+    case Void::Shape::rectangle:
+      for (int sx : {-1, 1})
+        for (int sz : {-1, 1}) add(sx * v.width / 2, sz * v.height / 2);
+      break;
+    case Void::Shape::polygon:
+      for (const auto& p : v.points) pts.push_back({p[0], -p[1]});
+      break;
+  }
+  return pts;
+}
+
+}  // namespace
+
+VoidExtent extent_of(const Void& v) {
+  const auto pts = outline_points(v);
+  VoidExtent e;
+  e.z_top = e.x_right = -1e300;
+  e.z_bottom = e.x_left = 1e300;
+  double sx = 0, sz = 0;
+  for (const auto& p : pts) {
+    e.x_left = std::min(e.x_left, p[0]);
+    e.x_right = std::max(e.x_right, p[0]);
+    e.z_bottom = std::min(e.z_bottom, p[1]);
+    e.z_top = std::max(e.z_top, p[1]);
+    sx += p[0];
+    sz += p[1];
+  }
+  if (v.shape == Void::Shape::polygon) {
+    e.cx = sx / static_cast<double>(pts.size());
+    e.cz = sz / static_cast<double>(pts.size());
+  } else {
+    e.cx = v.x;
+    e.cz = -v.depth;
+  }
+  return e;
+}
+
+mesh::Geometry2D geometry_of(const Scenario& s) {
+  mesh::Geometry2D g;
+  g.axisymmetric = s.model == Model::axisymmetric;
+  g.width = s.domain.width;
+  g.depth = s.domain.depth;
+  for (const Layer& l : s.layers) g.layer_thickness.push_back(l.thickness > 0 ? l.thickness : s.domain.depth);
+  for (const Void& v : s.voids) g.voids.push_back(outline_of(v));
+  g.sizing.order = s.mesh.order;
+  g.sizing.far = s.mesh.size;
+  g.sizing.near_void = s.mesh.near_void;
+  g.sizing.surface = s.mesh.surface;
+  return g;
+}
+
+std::vector<double> layer_k0(const Scenario& s) {
+  std::vector<double> k;
+  for (const Layer& l : s.layers) {
+    const double nu = s.materials.at(l.material).poisson;
+    k.push_back(s.loads.k0 ? *s.loads.k0 : nu / (1 - nu));
+  }
+  return k;
+}
+
+solver::StaticProblem static_problem_of(const Scenario& s, const mesh::Mesh& m) {
+  solver::StaticProblem p;
+  p.mesh = &m;
+  p.kinematics = s.model == Model::axisymmetric ? solver::Kinematics::axisymmetric : solver::Kinematics::plane_strain;
+  const auto k0 = layer_k0(s);
+  std::vector<double> bottoms, density;
+  double z = 0;
+  for (std::size_t i = 0; i < s.layers.size(); ++i) {
+    const Material& mat = s.materials.at(s.layers[i].material);
+    solver::LayerProps lp;
+    lp.elastic = {mat.young, mat.poisson, mat.density};
+    lp.ucs = mat.ucs;
+    lp.tensile = mat.tensile;
+    lp.k0 = k0[i];
+    p.layers.push_back(lp);
+    z -= s.layers[i].thickness > 0 ? s.layers[i].thickness : s.domain.depth;
+    bottoms.push_back(std::max(z, -s.domain.depth));
+    density.push_back(mat.density);
+  }
+  if (s.loads.gravity) {
+    // In-situ stress in equilibrium with self-weight: the ground has long settled under it, so
+    // displacements count from that state; excavating a void releases the wall traction.
+    p.body_force = true;
+    p.initial_stress = solver::geostatic_stress(bottoms, density, k0);
+  }
+  for (const Void& v : s.voids) {
+    solver::VoidLoad vl;
+    const VoidExtent e = extent_of(v);
+    vl.cx = e.cx;
+    vl.cz = e.cz;
+    switch (v.contents) {
+      case Contents::empty: vl.contents = solver::VoidLoad::Contents::empty; break;
+      case Contents::pressure:
+        vl.contents = solver::VoidLoad::Contents::pressure;
+        vl.pressure = v.pressure;
+        break;
+      case Contents::water:
+        vl.contents = solver::VoidLoad::Contents::water;
+        vl.water_table_z = v.water_table_depth ? -*v.water_table_depth : e.z_top;
+        break;
+    }
+    p.voids.push_back(vl);
+  }
+  for (const GroundLoss& gl : s.loads.ground_loss) p.voids[static_cast<std::size_t>(gl.void_index)].volume_loss = gl.percent / 100;
+  for (const SurfaceLoad& sl : s.loads.surface) p.surface.push_back({sl.from, sl.to, sl.pressure});
+  p.boundaries.sides = s.domain.sides == Boundary::fixed ? solver::Support::fixed : solver::Support::roller;
+  p.boundaries.bottom = s.domain.bottom == Boundary::fixed ? solver::Support::fixed : solver::Support::roller;
+  return p;
+}
+
+}  // namespace voidsign::cli

@@ -1,0 +1,35 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+#pragma once
+/// From a validated scenario to the mesher's geometry and the solver's problem: the only place
+/// where scenario conventions (depth positive down, percent, catalogue names) become model
+/// conventions (z up, fractions, per-layer properties).
+#include "cli/scenario/scenario.hpp"
+#include "mesh/build/geometry.hpp"
+#include "mesh/core/mesh.hpp"
+#include "solver/analysis/static.hpp"
+
+namespace voidsign::cli {
+
+/// Mesh sizes actually used (scenario values, or the defaults the parser filled in).
+mesh::Geometry2D geometry_of(const Scenario& s);
+
+/// The static problem on mesh `m` (which must have been built from geometry_of(s)).
+solver::StaticProblem static_problem_of(const Scenario& s, const mesh::Mesh& m);
+
+/// k0 used for each layer (the scenario's, or ν/(1−ν)).
+std::vector<double> layer_k0(const Scenario& s);
+
+/// The void's centre in model coordinates (x, z) and its top (crown) z and span [m].
+struct VoidExtent {
+  double cx = 0, cz = 0;
+  double z_top = 0, z_bottom = 0;
+  double x_left = 0, x_right = 0;
+};
+VoidExtent extent_of(const Void& v);
+
+/// Caution printed in --help, the run summary and the README.
+inline constexpr const char* caution_text =
+    "voidsign is an elastic screening model, not a design: it cannot show whether ground or structures are "
+    "safe. Defer to site investigation, local codes and a licensed geotechnical engineer.";
+
+}  // namespace voidsign::cli

@@ -1,0 +1,177 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+#include <unistd.h>
+
+#include <chrono>
+#include <cstdio>
+#include <ctime>
+#include <iostream>
+#include <sstream>
+
+#include "cli/commands/commands.hpp"
+#include "cli/commands/model_setup.hpp"
+#include "cli/commands/static_run.hpp"
+#include "cli/errors.hpp"
+#include "cli/output/output_dir.hpp"
+#include "cli/scenario/scenario.hpp"
+
+namespace voidsign::cli {
+
+namespace fs = std::filesystem;
+
+namespace {
+
+std::string utc_now() {
+  const std::time_t t = std::time(nullptr);
+  char buf[32];
+  std::strftime(buf, sizeof buf, "%Y-%m-%dT%H:%M:%SZ", std::gmtime(&t));
+  return buf;
+}
+
+const char* model_name(Model m) {
+  switch (m) {
+    case Model::plane_strain: return "plane-strain";
+    case Model::axisymmetric: return "axisymmetric";
+    case Model::three_d: return "3d";
+  }
+  return "?";
+}
+
+// Rejects runs whose estimated memory exceeds what the machine has, before allocating.
+void check_budget(const Scenario& s, const RunEstimate& e) {
+  const double phys = static_cast<double>(sysconf(_SC_PHYS_PAGES)) * static_cast<double>(sysconf(_SC_PAGE_SIZE));
+  if (e.memory_bytes > 0.8 * phys) {
+    std::ostringstream os;
+    os.precision(3);
+    os << s.file.string() << ": key 'mesh': the mesh would need about " << e.memory_bytes / 1e9 << " GB (" << e.dofs / 1e6
+       << " M unknowns), more than 80 % of this machine's " << phys / 1e9 << " GB: increase mesh.size, mesh.surface or mesh.near-void";
+    throw InputError(os.str());
+  }
+}
+
+void print_peaks(const StaticRun& run, const fs::path& dir) {
+  const solver::Anomaly& a = run.anomaly;
+  std::printf("\nStatic signature (with voids minus without), ground surface:\n");
+  std::printf("  %-34s %12.4g m    at x = %.2f m\n", "largest settlement", a.uz_min, a.x_uz_min);
+  std::printf("  %-34s %12.4g m\n", "settlement relative to far field", a.rel_uz_min);
+  std::printf("  %-34s %12.4g m    at x = %.2f m\n", "largest uplift", a.uz_max, a.x_uz_max);
+  std::printf("  %-34s %12.4g m    at x = %.2f m\n", "largest horizontal displacement", a.ux_absmax, a.x_ux_absmax);
+  std::printf("  %-34s %12.4g rad  at x = %.2f m\n", "largest tilt", a.tilt_absmax, a.x_tilt_absmax);
+  std::printf("  %-34s %12.4g -    at x = %.2f m\n", "largest horizontal strain", a.strain_absmax, a.x_strain_absmax);
+  std::printf("  %-34s %12.4g %s\n", "trough volume", a.trough_volume, run.problem.kinematics == solver::Kinematics::axisymmetric ? "m3" : "m3/m");
+  std::printf("  %-34s %12.4g m\n", "inflexion offset", a.inflexion_offset);
+  std::printf("  %-34s %12.3g\n", "min strength ratio (voided model)", run.stability.min_strength_ratio);
+  std::printf("  %-34s %12s\n", "roof in tension beyond strength", run.stability.tension_in_roof ? "YES" : "no");
+  std::printf("  %-34s %12.2g\n", "solve residual (worst)", std::max(run.result.reference.residual, run.result.voided.residual));
+  std::printf("\nResults in %s/ (summary.json, mesh.vtu, static/surface.csv, static/field.vtu, static/field_ref.vtu)\n",
+              dir.string().c_str());
+  std::printf("Caution: %s\n", caution_text);
+}
+
+}  // namespace
+
+fs::path output_dir_for(const RunOptions& opt, const fs::path& scenario_dir, const fs::path& from_file) {
+  if (opt.out) return fs::absolute(*opt.out);
+  if (!from_file.empty()) return from_file;
+  return scenario_dir / "results" / opt.scenario.stem();
+}
+
+int run_command(const RunOptions& opt) {
+  const auto t_start = std::chrono::steady_clock::now();
+  Scenario s = load_scenario(opt.scenario);
+  const fs::path dir = output_dir_for(opt, s.file.parent_path(), s.output_dir);
+  if (fs::exists(dir) && !(fs::is_directory(dir) && fs::is_empty(dir)) && !opt.force)
+    throw InputError(dir.string() + ": output folder exists and is not empty; use --force to replace it");
+  if (!s.analyses.static_)
+    throw InputError(s.file.string() + ": key 'analyses': no analysis this version runs was requested (add 'static: {}')");
+  for (const auto& w : s.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
+  check_budget(s, estimate_run(s));
+
+  ProgressLine progress(ProgressLine::stderr_is_terminal());
+  StaticRun run = run_static(s, &progress);
+  for (const auto& w : run.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
+
+  // Everything goes to a staging folder that replaces DIR only when complete.
+  progress.step("writing");
+  const auto t_write = std::chrono::steady_clock::now();
+  const fs::path staging = dir.parent_path() / (dir.filename().string() + ".partial-" + std::to_string(getpid()));
+  try {
+    fs::remove_all(staging);
+    fs::create_directories(staging);
+    write_static_outputs(run, s, staging);
+    nlohmann::json j;
+    j["format"] = 1;
+    j["tool_version"] = VOIDSIGN_VERSION;
+    j["input_sha256"] = s.sha256;
+    j["input_file"] = s.file.string();
+    j["date_utc"] = utc_now();
+    j["title"] = s.title;
+    j["model"] = model_name(s.model);
+    j["units"] = "SI: m, Pa, rad; z up, settlement negative; anomaly = with voids minus without";
+    j["mesh"] = {{"nodes", run.mesh->n_nodes()},
+                 {"elements", run.mesh->n_cells()},
+                 {"dofs", 2 * run.mesh->n_nodes()},
+                 {"order", s.mesh.order},
+                 {"min_quality", run.quality.min_quality},
+                 {"mean_quality", run.quality.mean_quality},
+                 {"size", s.mesh.size},
+                 {"near_void", s.mesh.near_void},
+                 {"surface", s.mesh.surface}};
+    j["static"] = static_summary(run);
+    j["detectability"] = nlohmann::json::array();
+    std::vector<std::string> warnings = s.warnings;
+    warnings.insert(warnings.end(), run.warnings.begin(), run.warnings.end());
+    j["warnings"] = warnings;
+    j["caution"] = caution_text;
+    const auto& t = run.result.timings;
+    const double write_s = std::chrono::duration<double>(std::chrono::steady_clock::now() - t_write).count();
+    j["timings_s"] = {{"mesh", run.mesh_seconds},
+                      {"assemble", t.assemble},
+                      {"analyse", t.analyse},
+                      {"factorize", t.factorize},
+                      {"solve", t.analyse + t.factorize + t.solve},
+                      {"write", write_s},
+                      {"total", std::chrono::duration<double>(std::chrono::steady_clock::now() - t_start).count()}};
+    write_text_atomic(staging / "summary.json", j.dump(2) + "\n");
+    if (fs::exists(dir)) fs::remove_all(dir);
+    fs::create_directories(dir.parent_path());
+    fs::rename(staging, dir);
+  } catch (const fs::filesystem_error& e) {
+    std::error_code ec;
+    fs::remove_all(staging, ec);
+    throw WriteError(std::string("cannot write results: ") + e.what());
+  } catch (...) {
+    std::error_code ec;
+    fs::remove_all(staging, ec);
+    throw;
+  }
+  progress.done();
+  print_peaks(run, dir);
+  return exit_ok;
+}
+
+int check_command(const fs::path& file) {
+  Scenario s = load_scenario(file);
+  for (const auto& w : s.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
+  for (const auto& w : model_warnings(s)) std::fprintf(stderr, "warning: %s\n", w.c_str());
+  const RunEstimate e = estimate_run(s);
+  std::printf("%s: scenario is valid (%s, %zu layer(s), %zu void(s))\n", s.file.string().c_str(), model_name(s.model),
+              s.layers.size(), s.voids.size());
+  std::printf("estimate before meshing: %.0f elements, %.0f unknowns, %.2f GB peak, %.1f s\n", e.cells, e.dofs,
+              e.memory_bytes / 1e9, e.seconds);
+  check_budget(s, e);
+  ProgressLine progress(ProgressLine::stderr_is_terminal());
+  mesh::Quality q;
+  const auto t0 = std::chrono::steady_clock::now();
+  auto m = build_checked_mesh(s, &q, &progress);
+  const double t_mesh = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+  const double dofs = 2.0 * static_cast<double>(m->n_nodes());
+  const RunEstimate after = estimate_for(static_cast<double>(m->n_cells()), dofs);
+  std::printf("mesh: %zu nodes, %zu elements (order %d), %.0f unknowns, built in %.2f s\n", m->n_nodes(), m->n_cells(),
+              s.mesh.order, dofs, t_mesh);
+  std::printf("element quality: min %.3f, mean %.3f (1 = equilateral); no inverted elements\n", q.min_quality,
+              q.mean_quality);
+  std::printf("run estimate (both models): %.2f GB peak memory, %.1f s\n", after.memory_bytes / 1e9, after.seconds);
+  return exit_ok;
+}
+
+}  // namespace voidsign::cli

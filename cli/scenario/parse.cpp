@@ -1,0 +1,1124 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+// Scenario reader: YAML text → Scenario, with every mistake reported as
+// "FILE:LINE:COL: key 'a.b.c': problem (hint)". The format is docs/scenario-format.md.
+#include <yaml-cpp/yaml.h>
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <cstdio>
+#include <fstream>
+#include <iterator>
+#include <limits>
+#include <numbers>
+#include <optional>
+#include <sstream>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "cli/errors.hpp"
+#include "cli/scenario/catalogue.hpp"
+#include "cli/scenario/scenario.hpp"
+#include "cli/scenario/sha256.hpp"
+#include "cli/scenario/suggest.hpp"
+
+namespace voidsign::cli {
+namespace {
+
+namespace fs = std::filesystem;
+using Strings = std::vector<std::string>;
+
+std::string num(double v) {
+  char buf[40];
+  std::snprintf(buf, sizeof buf, "%g", v);
+  return buf;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Messages
+
+struct Ctx {
+  std::string file;                        // as given, for messages
+  std::vector<std::string>* warnings = nullptr;
+};
+
+std::string prefix(const Ctx& c, const YAML::Mark& m, const std::string& path) {
+  std::string s = c.file;
+  if (m.line >= 0) s += ":" + std::to_string(m.line + 1) + ":" + std::to_string(m.column + 1);
+  s += ": ";
+  if (!path.empty()) s += "key '" + path + "': ";
+  return s;
+}
+
+[[noreturn]] void fail_at(const Ctx& c, const YAML::Mark& m, const std::string& path,
+                          const std::string& problem) {
+  throw InputError(prefix(c, m, path) + problem);
+}
+
+void warn_at(const Ctx& c, const YAML::Mark& m, const std::string& path,
+             const std::string& problem) {
+  c.warnings->push_back(prefix(c, m, path) + problem);
+}
+
+std::string join(const std::string& parent, const std::string& key) {
+  return parent.empty() ? key : parent + "." + key;
+}
+
+std::string with_hint(const std::string& problem, const std::string& hint) {
+  return hint.empty() ? problem : problem + " (" + hint + ")";
+}
+
+std::string describe(const YAML::Node& n) {
+  switch (n.Type()) {
+    case YAML::NodeType::Map: return "a mapping";
+    case YAML::NodeType::Sequence: return "a list";
+    case YAML::NodeType::Scalar:
+      return (n.Tag() == "!" ? "the quoted text '" : "the value '") + n.Scalar() + "'";
+    default: return "no value";
+  }
+}
+
+// A plain (unquoted) scalar that reads as a finite or infinite number.
+bool read_number(const YAML::Node& n, double& out) {
+  if (!n.IsScalar() || n.Tag() == "!") return false;
+  return YAML::convert<double>::decode(n, out);
+}
+
+// ---------------------------------------------------------------------------------------------
+// Typed access to the YAML tree with key paths and positions
+
+class Map;
+
+/// One value of the tree: the node, its key path and where its key (or list item) starts.
+struct Field {
+  const Ctx* ctx = nullptr;
+  YAML::Node node;
+  std::string path;
+  YAML::Mark key_mark;
+
+  // Points at the value itself, except for an empty value, whose mark yaml-cpp puts at the
+  // next token: then the key is the better place.
+  YAML::Mark mark() const {
+    if (node.IsNull() || node.Mark().line < 0) return key_mark;
+    return node.Mark();
+  }
+  [[noreturn]] void fail(const std::string& problem) const {
+    fail_at(*ctx, mark(), path, problem);
+  }
+  void warn(const std::string& problem) const { warn_at(*ctx, mark(), path, problem); }
+  SourceLoc loc() const { return {mark().line + 1, mark().column + 1, path}; }
+
+  double number() const {
+    double v = 0;
+    if (!read_number(node, v)) {
+      if (node.IsScalar() && node.Tag() == "!" && YAML::convert<double>::decode(node, v))
+        fail("expected a number, found " + describe(node) + " (remove the quotes)");
+      fail("expected a number, found " + describe(node));
+    }
+    if (!std::isfinite(v)) fail("expected a finite number, found " + describe(node));
+    return v;
+  }
+  double positive() const {
+    const double v = number();
+    if (!(v > 0)) fail("must be greater than 0, got " + num(v));
+    return v;
+  }
+  double non_negative() const {
+    const double v = number();
+    if (v < 0) fail("must be 0 or more, got " + num(v));
+    return v;
+  }
+  int whole() const {
+    const double v = number();
+    if (v != std::floor(v) || std::abs(v) > 1e9) fail("expected a whole number, got " + num(v));
+    return static_cast<int>(v);
+  }
+  std::string text() const {
+    if (!node.IsScalar()) fail("expected a text value, found " + describe(node));
+    return node.Scalar();
+  }
+  /// One word out of `choices`; `what` names it in the message ("shape").
+  std::string choice(const Strings& choices, const std::string& what) const {
+    if (!node.IsScalar())
+      fail("expected " + what + " (one of: " + list_words(choices) + "), found " +
+           describe(node));
+    const std::string w = node.Scalar();
+    if (std::find(choices.begin(), choices.end(), w) == choices.end())
+      fail(with_hint("unknown " + what + " '" + w + "'", suggestion_hint(w, choices)));
+    return w;
+  }
+  std::vector<Field> list() const {
+    if (!node.IsSequence()) fail("expected a list, found " + describe(node));
+    std::vector<Field> items;
+    std::size_t i = 0;
+    for (const auto& item : node) {
+      const YAML::Mark m = item.Mark().line >= 0 ? item.Mark() : mark();
+      items.push_back({ctx, item, join(path, std::to_string(i++)), m});
+    }
+    return items;
+  }
+  Map map(bool null_ok = false) const;
+
+  static std::string list_words(const Strings& words) {
+    std::string s;
+    for (std::size_t i = 0; i < words.size(); ++i) s += (i ? ", " : "") + words[i];
+    return s;
+  }
+};
+
+/// A mapping whose keys are checked against the keys valid at its place.
+class Map {
+ public:
+  Map(const Field& field, bool null_ok) : self_(field) {
+    if (field.node.IsNull() && null_ok) return;
+    if (!field.node.IsMap()) field.fail("expected a mapping, found " + describe(field.node));
+    for (auto it = field.node.begin(); it != field.node.end(); ++it) {
+      const YAML::Mark km = it->first.Mark();
+      if (!it->first.IsScalar())
+        fail_at(*field.ctx, km, field.path,
+                "a key must be a single word, found " + describe(it->first));
+      const std::string key = it->first.Scalar();
+      for (const auto& e : entries_)
+        if (e.key == key)
+          fail_at(*field.ctx, km, join(field.path, key),
+                  "duplicate key (first given at line " + std::to_string(e.field.key_mark.line + 1) +
+                      ")");
+      entries_.push_back({key, Field{field.ctx, it->second, join(field.path, key), km}});
+    }
+  }
+
+  /// Rejects any key not in `valid`, naming the nearest valid one.
+  void allow(const Strings& valid) const {
+    for (const auto& e : entries_)
+      if (std::find(valid.begin(), valid.end(), e.key) == valid.end()) {
+        const std::string hint =
+            valid.empty() ? "no keys are valid here" : suggestion_hint(e.key, valid);
+        fail_at(*self_.ctx, e.field.key_mark, e.field.path,
+                with_hint("unknown key '" + e.key + "'", hint));
+      }
+  }
+  bool has(std::string_view key) const { return find(key) != nullptr; }
+  std::optional<Field> get(std::string_view key) const {
+    if (const Field* f = find(key)) return *f;
+    return std::nullopt;
+  }
+  /// The value of a required key; `why` is appended to the message when it is missing.
+  Field need(const std::string& key, const std::string& why = "") const {
+    if (const Field* f = find(key)) return *f;
+    fail_at(*self_.ctx, self_.mark(), join(self_.path, key),
+            "required key is missing" + (why.empty() ? "" : " (" + why + ")"));
+  }
+  const Field& self() const { return self_; }
+  std::vector<std::string> keys() const {
+    Strings k;
+    for (const auto& e : entries_) k.push_back(e.key);
+    return k;
+  }
+
+ private:
+  struct Entry {
+    std::string key;
+    Field field;
+  };
+  const Field* find(std::string_view key) const {
+    for (const auto& e : entries_)
+      if (e.key == key) return &e.field;
+    return nullptr;
+  }
+  Field self_;
+  std::vector<Entry> entries_;
+};
+
+Map Field::map(bool null_ok) const { return Map(*this, null_ok); }
+
+// ---------------------------------------------------------------------------------------------
+// Void geometry in the x–z plane (z up, z = -depth)
+
+struct Pt {
+  double x, z;
+};
+
+Pt operator-(Pt a, Pt b) { return {a.x - b.x, a.z - b.z}; }
+double cross(Pt a, Pt b) { return a.x * b.z - a.z * b.x; }
+double dot(Pt a, Pt b) { return a.x * b.x + a.z * b.z; }
+
+struct Box {
+  double x_min, x_max, z_min, z_max;
+};
+
+struct Shape {
+  Void::Shape kind;
+  Pt c{0, 0};
+  double r = 0, a = 0, b = 0, w = 0, h = 0;
+  double cos_t = 1, sin_t = 0;
+  std::vector<Pt> pts;
+
+  // Coordinates in the shape's own axes (rotation by -angle).
+  Pt local(Pt p) const {
+    const Pt d = p - c;
+    return {d.x * cos_t + d.z * sin_t, -d.x * sin_t + d.z * cos_t};
+  }
+  Pt global(Pt q) const {
+    return {c.x + q.x * cos_t - q.z * sin_t, c.z + q.x * sin_t + q.z * cos_t};
+  }
+};
+
+Shape shape_of(const Void& v) {
+  Shape s;
+  s.kind = v.shape;
+  s.c = {v.x, -v.depth};
+  s.r = v.radius;
+  s.a = v.axes[0];
+  s.b = v.axes[1];
+  s.w = v.width;
+  s.h = v.height;
+  const double t = v.angle * std::numbers::pi / 180.0;
+  s.cos_t = std::cos(t);
+  s.sin_t = std::sin(t);
+  for (const auto& p : v.points) s.pts.push_back({p[0], -p[1]});
+  return s;
+}
+
+Box bounding_box(const Shape& s) {
+  switch (s.kind) {
+    case Void::Shape::circle: return {s.c.x - s.r, s.c.x + s.r, s.c.z - s.r, s.c.z + s.r};
+    case Void::Shape::ellipse: {
+      // Extreme x and z of a rotated ellipse.
+      const double hx = std::hypot(s.a * s.cos_t, s.b * s.sin_t);
+      const double hz = std::hypot(s.a * s.sin_t, s.b * s.cos_t);
+      return {s.c.x - hx, s.c.x + hx, s.c.z - hz, s.c.z + hz};
+    }
+    case Void::Shape::rectangle: {
+      const double hx = std::abs(s.w / 2 * s.cos_t) + std::abs(s.h / 2 * s.sin_t);
+      const double hz = std::abs(s.w / 2 * s.sin_t) + std::abs(s.h / 2 * s.cos_t);
+      return {s.c.x - hx, s.c.x + hx, s.c.z - hz, s.c.z + hz};
+    }
+    case Void::Shape::polygon: break;
+  }
+  Box b{s.pts[0].x, s.pts[0].x, s.pts[0].z, s.pts[0].z};
+  for (const Pt& p : s.pts) {
+    b.x_min = std::min(b.x_min, p.x);
+    b.x_max = std::max(b.x_max, p.x);
+    b.z_min = std::min(b.z_min, p.z);
+    b.z_max = std::max(b.z_max, p.z);
+  }
+  return b;
+}
+
+double segment_distance(Pt p, Pt a, Pt b) {
+  const Pt ab = b - a, ap = p - a;
+  const double len2 = dot(ab, ab);
+  const double t = len2 > 0 ? std::clamp(dot(ap, ab) / len2, 0.0, 1.0) : 0.0;
+  return std::hypot(ap.x - t * ab.x, ap.z - t * ab.z);
+}
+
+double outline_distance(const std::vector<Pt>& pts, Pt p) {
+  double d = std::numeric_limits<double>::infinity();
+  for (std::size_t i = 0; i < pts.size(); ++i)
+    d = std::min(d, segment_distance(p, pts[i], pts[(i + 1) % pts.size()]));
+  return d;
+}
+
+/// Inside or on the outline, within `tol` metres (a relative tolerance for the curved shapes).
+bool contains(const Shape& s, Pt p, double tol) {
+  const Pt q = s.local(p);
+  switch (s.kind) {
+    case Void::Shape::circle: return std::hypot(q.x, q.z) <= s.r + tol;
+    case Void::Shape::ellipse: {
+      const double ra = q.x / (s.a + tol), rb = q.z / (s.b + tol);
+      return ra * ra + rb * rb <= 1.0;
+    }
+    case Void::Shape::rectangle:
+      return std::abs(q.x) <= s.w / 2 + tol && std::abs(q.z) <= s.h / 2 + tol;
+    case Void::Shape::polygon: break;
+  }
+  bool inside = false;  // even-odd ray casting along +x
+  const auto& v = s.pts;
+  for (std::size_t i = 0, j = v.size() - 1; i < v.size(); j = i++) {
+    if ((v[i].z > p.z) != (v[j].z > p.z)) {
+      const double xc = v[j].x + (p.z - v[j].z) * (v[i].x - v[j].x) / (v[i].z - v[j].z);
+      if (p.x < xc) inside = !inside;
+    }
+  }
+  return inside || outline_distance(v, p) <= tol;
+}
+
+/// `n` points spread along the outline (polygons and rectangles by arc length).
+std::vector<Pt> sample_outline(const Shape& s, int n) {
+  std::vector<Pt> out;
+  out.reserve(static_cast<std::size_t>(n) + 8);
+  if (s.kind == Void::Shape::circle || s.kind == Void::Shape::ellipse) {
+    const double a = s.kind == Void::Shape::circle ? s.r : s.a;
+    const double b = s.kind == Void::Shape::circle ? s.r : s.b;
+    for (int k = 0; k < n; ++k) {
+      const double t = 2 * std::numbers::pi * k / n;
+      out.push_back(s.global({a * std::cos(t), b * std::sin(t)}));
+    }
+    return out;
+  }
+  std::vector<Pt> corners = s.pts;
+  if (s.kind == Void::Shape::rectangle) {
+    const double hw = s.w / 2, hh = s.h / 2;
+    corners = {s.global({-hw, -hh}), s.global({hw, -hh}), s.global({hw, hh}),
+               s.global({-hw, hh})};
+  }
+  double perimeter = 0;
+  for (std::size_t i = 0; i < corners.size(); ++i)
+    perimeter += std::hypot((corners[(i + 1) % corners.size()] - corners[i]).x,
+                            (corners[(i + 1) % corners.size()] - corners[i]).z);
+  for (std::size_t i = 0; i < corners.size(); ++i) {
+    const Pt a = corners[i], b = corners[(i + 1) % corners.size()];
+    const double len = std::hypot((b - a).x, (b - a).z);
+    const int m = std::max(1, static_cast<int>(std::ceil(n * len / perimeter)));
+    for (int k = 0; k < m; ++k) {
+      const double t = static_cast<double>(k) / m;
+      out.push_back({a.x + t * (b.x - a.x), a.z + t * (b.z - a.z)});
+    }
+  }
+  return out;
+}
+
+/// A point inside the shape (the centre, or for a polygon the midpoint of a chord through it).
+Pt inner_point(const Shape& s) {
+  if (s.kind != Void::Shape::polygon) return s.c;
+  const Box b = bounding_box(s);
+  const double z = 0.5 * (b.z_min + b.z_max);
+  std::vector<double> xs;
+  const auto& v = s.pts;
+  for (std::size_t i = 0, j = v.size() - 1; i < v.size(); j = i++)
+    if ((v[i].z > z) != (v[j].z > z))
+      xs.push_back(v[j].x + (z - v[j].z) * (v[i].x - v[j].x) / (v[i].z - v[j].z));
+  std::sort(xs.begin(), xs.end());
+  if (xs.size() >= 2) return {0.5 * (xs[0] + xs[1]), z};
+  return v[0];
+}
+
+bool shapes_overlap(const Shape& s1, const Shape& s2, double tol) {
+  const Box b1 = bounding_box(s1), b2 = bounding_box(s2);
+  if (b1.x_max + tol < b2.x_min || b2.x_max + tol < b1.x_min || b1.z_max + tol < b2.z_min ||
+      b2.z_max + tol < b1.z_min)
+    return false;
+  if (contains(s1, inner_point(s2), tol) || contains(s2, inner_point(s1), tol)) return true;
+  for (const Pt& p : sample_outline(s1, 720))
+    if (contains(s2, p, tol)) return true;
+  for (const Pt& p : sample_outline(s2, 720))
+    if (contains(s1, p, tol)) return true;
+  return false;
+}
+
+/// The size that governs the mesh on a void's boundary: radius, smaller semi-axis, half the
+/// smaller side, or half the smaller side of a polygon's bounding box.
+double feature_size(const Void& v, const Shape& s) {
+  switch (v.shape) {
+    case Void::Shape::circle: return v.radius;
+    case Void::Shape::ellipse: return std::min(v.axes[0], v.axes[1]);
+    case Void::Shape::rectangle: return std::min(v.width, v.height) / 2;
+    case Void::Shape::polygon: break;
+  }
+  const Box b = bounding_box(s);
+  return std::min(b.x_max - b.x_min, b.z_max - b.z_min) / 2;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Sections
+
+const Strings k_top_keys = {"format", "title",  "model", "domain",  "materials", "layers",
+                            "voids",  "loads",  "analyses", "mesh", "sensors",   "output"};
+const Strings k_material_keys = {"density", "young", "poisson", "vp",
+                                 "vs",      "damping", "ucs",   "tensile"};
+
+Material parse_material(const Field& f, const std::string& name) {
+  const Map m = f.map();
+  m.allow(k_material_keys);
+  Material mat;
+  mat.name = name;
+  mat.density = m.need("density", "kg/m^3").positive();
+  const bool elastic = m.has("young") || m.has("poisson");
+  const bool waves = m.has("vp") || m.has("vs");
+  std::string source = "scenario file";
+  if (elastic && waves)
+    (m.has("vp") ? *m.get("vp") : *m.get("vs"))
+        .fail("give either young and poisson, or vp and vs, not both");
+  if (!elastic && !waves)
+    fail_at(*f.ctx, f.mark(), f.path,
+            "a material needs young and poisson, or the wave speeds vp and vs");
+  if (elastic) {
+    mat.young = m.need("young", "Pa; needed with poisson").positive();
+    const Field pf = m.need("poisson", "needed with young");
+    mat.poisson = pf.number();
+    if (!(mat.poisson > -1 && mat.poisson < 0.5))
+      pf.fail("Poisson's ratio must lie between -1 and 0.5 (both excluded), got " +
+              num(mat.poisson));
+    if (mat.poisson < 0) pf.warn("negative Poisson's ratio " + num(mat.poisson));
+  } else {
+    const double vp = m.need("vp", "m/s; needed with vs").positive();
+    const Field vs_field = m.need("vs", "m/s; needed with vp");
+    const double vs = vs_field.positive();
+    if (!(vp > vs))
+      vs_field.fail("vs (" + num(vs) + " m/s) must be smaller than vp (" + num(vp) + " m/s)");
+    // ν = (vp² − 2 vs²) / (2 (vp² − vs²)), G = ρ vs², E = 2 G (1 + ν).
+    const double nu = (vp * vp - 2 * vs * vs) / (2 * (vp * vp - vs * vs));
+    if (!(nu > -1 && nu < 0.5))
+      vs_field.fail("vp and vs give Poisson's ratio " + num(nu) +
+                    ", outside (-1, 0.5): vp/vs must exceed 2/sqrt(3) = 1.155");
+    if (nu < 0)
+      vs_field.warn("vp and vs give a negative Poisson's ratio " + num(nu) +
+                    " (vp/vs below sqrt(2))");
+    const double g = mat.density * vs * vs;
+    mat.poisson = nu;
+    mat.young = 2 * g * (1 + nu);
+    source += "; young and poisson from vp and vs (G = rho vs^2)";
+  }
+  Strings missing;
+  if (auto d = m.get("damping")) {
+    mat.damping = d->non_negative();
+    if (!(mat.damping < 1)) d->fail("a damping ratio must be below 1, got " + num(mat.damping));
+  } else {
+    missing.push_back("damping");
+  }
+  if (auto u = m.get("ucs"))
+    mat.ucs = u->non_negative();
+  else
+    missing.push_back("ucs");
+  if (auto t = m.get("tensile")) {
+    mat.tensile = t->non_negative();
+    if (mat.ucs > 0 && mat.tensile > mat.ucs)
+      t->warn("tensile strength " + num(mat.tensile) + " Pa exceeds the ucs " + num(mat.ucs) +
+              " Pa");
+  } else {
+    missing.push_back("tensile");
+  }
+  if (!missing.empty()) source += "; not given, set to 0: " + Field::list_words(missing);
+  mat.source = source;
+  return mat;
+}
+
+struct VoidInput {
+  Void v;
+  Field self;
+  std::optional<Field> x, depth, points;
+  std::vector<Field> point_fields;
+};
+
+void parse_contents(const Field& f, Void& v) {
+  static const Strings words = {"empty", "water"};
+  if (f.node.IsScalar()) {
+    v.contents = f.choice(words, "contents") == "water" ? Contents::water : Contents::empty;
+    return;
+  }
+  if (!f.node.IsMap())
+    f.fail("expected empty, water, {pressure: Pa} or {water: {table-depth: m}}, found " +
+           describe(f.node));
+  const Map m = f.map();
+  m.allow({"pressure", "water"});
+  if (m.has("pressure") && m.has("water"))
+    m.get("water")->fail("give either pressure or water, not both");
+  if (auto p = m.get("pressure")) {
+    v.contents = Contents::pressure;
+    v.pressure = p->number();
+    if (v.pressure < -101325)
+      p->warn("a gauge pressure of " + num(v.pressure) +
+              " Pa is below vacuum (-101325 Pa at sea level)");
+  } else if (auto w = m.get("water")) {
+    v.contents = Contents::water;
+    const Map wm = w->map(true);
+    wm.allow({"table-depth"});
+    if (auto t = wm.get("table-depth")) {
+      const double d = t->number();
+      if (d < 0) t->fail("must be 0 or more (metres below the ground surface), got " + num(d));
+      v.water_table_depth = d;
+    }
+  } else {
+    f.fail("expected {pressure: Pa} or {water: {table-depth: m}}, found an empty mapping");
+  }
+}
+
+void check_polygon(const VoidInput& in) {
+  const auto& p = in.v.points;
+  const std::size_t n = p.size();
+  const Field& pf = *in.points;
+  std::vector<Pt> v;
+  for (const auto& q : p) v.push_back({q[0], -q[1]});
+  double lx = 0, lz = 0;
+  {
+    Shape s;
+    s.kind = Void::Shape::polygon;
+    s.pts = v;
+    const Box b = bounding_box(s);
+    lx = b.x_max - b.x_min;
+    lz = b.z_max - b.z_min;
+  }
+  const double scale = std::max(lx, lz);
+  const double eps_len = 1e-9 * scale, eps_area = 1e-12 * scale * scale;
+  auto edge = [&](std::size_t i) {
+    return std::to_string(i) + "-" + std::to_string((i + 1) % n);
+  };
+  for (std::size_t i = 0; i < n; ++i) {
+    const std::size_t j = (i + 1) % n;
+    if (std::hypot((v[j] - v[i]).x, (v[j] - v[i]).z) <= eps_len) {
+      if (j == 0)
+        in.point_fields[i].fail(
+            "the last point repeats the first; a polygon closes by itself, leave it out");
+      in.point_fields[j].fail("point " + std::to_string(j) + " repeats point " +
+                              std::to_string(i));
+    }
+  }
+
+  auto orient = [&](Pt a, Pt b, Pt c) {
+    const double k = cross(b - a, c - a);
+    return k > eps_area ? 1 : (k < -eps_area ? -1 : 0);
+  };
+  auto on_seg = [&](Pt a, Pt b, Pt c) {  // c on segment ab, given collinear
+    return std::min(a.x, b.x) - eps_len <= c.x && c.x <= std::max(a.x, b.x) + eps_len &&
+           std::min(a.z, b.z) - eps_len <= c.z && c.z <= std::max(a.z, b.z) + eps_len;
+  };
+  auto touch = [&](Pt a, Pt b, Pt c, Pt d) {
+    const int o1 = orient(a, b, c), o2 = orient(a, b, d), o3 = orient(c, d, a),
+              o4 = orient(c, d, b);
+    if (o1 != o2 && o3 != o4) return true;
+    return (o1 == 0 && on_seg(a, b, c)) || (o2 == 0 && on_seg(a, b, d)) ||
+           (o3 == 0 && on_seg(c, d, a)) || (o4 == 0 && on_seg(c, d, b));
+  };
+  for (std::size_t i = 0; i < n; ++i) {
+    // Neighbouring edges share a point; they only go wrong by folding back on each other.
+    const Pt a = v[i], b = v[(i + 1) % n], c = v[(i + 2) % n];
+    if (orient(a, b, c) == 0 && dot(a - b, c - b) > 0)
+      pf.fail("polygon edges " + edge(i) + " and " + edge((i + 1) % n) +
+              " fold back on each other");
+    for (std::size_t j = i + 2; j < n; ++j) {
+      if (i == 0 && j == n - 1) continue;  // neighbours through point 0
+      if (touch(v[i], v[(i + 1) % n], v[j], v[(j + 1) % n]))
+        pf.fail("the polygon crosses itself: edges " + edge(i) + " and " + edge(j) +
+                " intersect");
+    }
+  }
+  double area2 = 0;
+  for (std::size_t i = 0; i < n; ++i) area2 += cross(v[i], v[(i + 1) % n]);
+  if (std::abs(area2) <= 2 * eps_area) pf.fail("the polygon has no area (its points are in a line)");
+}
+
+VoidInput parse_void(const Field& f) {
+  static const Strings shapes = {"circle", "ellipse", "rectangle", "polygon"};
+  const Map m = f.map();
+  VoidInput in{{}, f, {}, {}, {}, {}};
+  Void& v = in.v;
+  const Field sf = m.need("shape", "circle, ellipse, rectangle or polygon");
+  if (sf.node.IsScalar()) {
+    const std::string s = sf.node.Scalar();
+    if (s == "sphere" || s == "box" || s == "tunnel")
+      sf.fail("shape '" + s + "' belongs to 3d models, which this version does not support");
+  }
+  const std::string shape = sf.choice(shapes, "shape");
+  if (shape == "circle") {
+    m.allow({"shape", "x", "depth", "radius", "contents"});
+    v.shape = Void::Shape::circle;
+    v.radius = m.need("radius", "m").positive();
+  } else if (shape == "ellipse") {
+    m.allow({"shape", "x", "depth", "axes", "angle", "contents"});
+    v.shape = Void::Shape::ellipse;
+    const Field af = m.need("axes", "the two semi-axes [a, b] in m");
+    const auto items = af.list();
+    if (items.size() != 2)
+      af.fail("expected two semi-axes [a, b], found " + std::to_string(items.size()) +
+              " values");
+    v.axes = {items[0].positive(), items[1].positive()};
+  } else if (shape == "rectangle") {
+    m.allow({"shape", "x", "depth", "width", "height", "angle", "contents"});
+    v.shape = Void::Shape::rectangle;
+    v.width = m.need("width", "m").positive();
+    v.height = m.need("height", "m").positive();
+  } else {
+    m.allow({"shape", "points", "contents"});
+    v.shape = Void::Shape::polygon;
+    in.points = m.need("points", "a list of [x, depth] pairs");
+    in.point_fields = in.points->list();
+    if (in.point_fields.size() < 3)
+      in.points->fail("a polygon needs at least 3 points, found " +
+                      std::to_string(in.point_fields.size()));
+    for (const Field& pf : in.point_fields) {
+      const auto xy = pf.list();
+      if (xy.size() != 2)
+        pf.fail("expected a pair [x, depth], found " + std::to_string(xy.size()) + " values");
+      v.points.push_back({xy[0].number(), xy[1].number()});
+    }
+    check_polygon(in);
+    // The polygon's x and depth are its area centroid.
+    double a2 = 0, cx = 0, cd = 0;
+    const std::size_t n = v.points.size();
+    for (std::size_t i = 0; i < n; ++i) {
+      const auto& p = v.points[i];
+      const auto& q = v.points[(i + 1) % n];
+      const double k = p[0] * q[1] - q[0] * p[1];
+      a2 += k;
+      cx += (p[0] + q[0]) * k;
+      cd += (p[1] + q[1]) * k;
+    }
+    v.x = cx / (3 * a2);
+    v.depth = cd / (3 * a2);
+  }
+  if (v.shape != Void::Shape::polygon) {
+    in.x = m.need("x", "m, horizontal position of the centre");
+    in.depth = m.need("depth", "m, depth of the centre below the surface");
+    v.x = in.x->number();
+    v.depth = in.depth->number();
+    if (auto a = m.get("angle")) v.angle = a->number();
+  }
+  if (auto c = m.get("contents")) parse_contents(*c, v);
+  v.loc = f.loc();
+  return in;
+}
+
+// Where to point for a geometric problem at one side of the void.
+const Field& depth_field(const VoidInput& in, bool top) {
+  if (in.v.shape != Void::Shape::polygon) return *in.depth;
+  std::size_t best = 0;
+  for (std::size_t i = 1; i < in.v.points.size(); ++i) {
+    const bool better = top ? in.v.points[i][1] < in.v.points[best][1]
+                            : in.v.points[i][1] > in.v.points[best][1];
+    if (better) best = i;
+  }
+  return in.point_fields[best];
+}
+
+const Field& x_field(const VoidInput& in, bool right) {
+  if (in.v.shape != Void::Shape::polygon) return *in.x;
+  std::size_t best = 0;
+  for (std::size_t i = 1; i < in.v.points.size(); ++i) {
+    const bool better = right ? in.v.points[i][0] > in.v.points[best][0]
+                              : in.v.points[i][0] < in.v.points[best][0];
+    if (better) best = i;
+  }
+  return in.point_fields[best];
+}
+
+void check_void_in_domain(const VoidInput& in, const Scenario& sc) {
+  const Void& v = in.v;
+  const Shape s = shape_of(v);
+  const Box b = bounding_box(s);
+  const double top = -b.z_max, bottom = -b.z_min, half = sc.domain.width / 2;
+  const bool axi = sc.model == Model::axisymmetric;
+  if (axi) {
+    if (v.shape == Void::Shape::polygon) {
+      const double tol = 1e-6 * std::max(b.x_max - b.x_min, b.z_max - b.z_min);
+      for (std::size_t i = 0; i < s.pts.size(); ++i)
+        if (outline_distance(s.pts, {-s.pts[i].x, s.pts[i].z}) > tol)
+          in.point_fields[i].fail(
+              "axisymmetric model: a polygon must be symmetric about the axis x = 0, but the "
+              "mirror image of this point, x = " +
+              num(-s.pts[i].x) + ", is not on its outline");
+    } else {
+      if (v.x != 0)
+        in.x->fail("axisymmetric model: a void must be centred on the axis (x: 0), got x = " +
+                   num(v.x));
+      const double q = std::remainder(v.angle, 90.0);
+      if (v.shape != Void::Shape::circle && std::abs(q) > 1e-9)
+        in.self.fail("axisymmetric model: a " +
+                     std::string(v.shape == Void::Shape::ellipse ? "ellipse" : "rectangle") +
+                     " must be symmetric about the axis, so its angle must be a multiple of "
+                     "90 degrees, got " +
+                     num(v.angle));
+    }
+  }
+  if (top <= 0)
+    depth_field(in, true)
+        .fail("the void breaks the ground surface: its top is at depth " + num(top) +
+              " m; it must lie below 0");
+  if (bottom >= sc.domain.depth)
+    depth_field(in, false)
+        .fail("the void reaches depth " + num(bottom) +
+              " m, at or below the bottom of the domain (domain.depth = " +
+              num(sc.domain.depth) + " m)");
+  if (axi) {
+    if (b.x_max >= half)
+      x_field(in, true).fail("the void reaches r = " + num(b.x_max) +
+                             " m, at or beyond the domain's outer edge (r = width/2 = " +
+                             num(half) + " m)");
+  } else {
+    if (b.x_min <= -half)
+      x_field(in, false).fail("the void reaches x = " + num(b.x_min) +
+                              " m, at or beyond the domain's left side (x = " + num(-half) +
+                              " m)");
+    if (b.x_max >= half)
+      x_field(in, true).fail("the void reaches x = " + num(b.x_max) +
+                             " m, at or beyond the domain's right side (x = " + num(half) +
+                             " m)");
+  }
+}
+
+void check_layers(const std::vector<Field>& items, const Scenario& sc) {
+  double total = 0;
+  const double depth = sc.domain.depth;
+  for (std::size_t i = 0; i < sc.layers.size(); ++i) {
+    const Map m = items[i].map();
+    const bool last = i + 1 == sc.layers.size();
+    if (!m.has("thickness")) continue;
+    const Field tf = *m.get("thickness");
+    total += sc.layers[i].thickness;
+    if (!last && total >= depth)
+      tf.fail("the layers down to this one reach " + num(total) +
+              " m, at or below the bottom of the domain (domain.depth = " + num(depth) +
+              " m), which leaves no room for the layers below");
+    if (last && total > depth + 1e-9 * depth)
+      tf.fail("the layers reach " + num(total) + " m, below the bottom of the domain "
+              "(domain.depth = " + num(depth) + " m)");
+    if (last && total < depth - 1e-9 * depth)
+      tf.warn("the last layer runs to the bottom of the domain: " +
+              num(depth - (total - sc.layers[i].thickness)) + " m thick, not the " +
+              num(sc.layers[i].thickness) + " m given");
+  }
+}
+
+YAML::Node load_yaml(const Ctx& ctx, const std::string& text) {
+  std::vector<YAML::Node> docs;
+  try {
+    docs = YAML::LoadAll(text);
+  } catch (const YAML::Exception& e) {
+    fail_at(ctx, e.mark, "", "YAML syntax error: " + e.msg);
+  }
+  if (docs.empty() || docs[0].IsNull())
+    throw InputError(ctx.file + ":1:1: the scenario is empty; it needs at least format, "
+                                "domain and layers");
+  if (docs.size() > 1)
+    fail_at(ctx, docs[1].Mark(), "",
+            "a scenario file holds one YAML document; this is the start of a second one");
+  return docs[0];
+}
+
+}  // namespace
+
+Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::path& file) {
+  Scenario sc;
+  const Ctx ctx{file.string(), &sc.warnings};
+  sc.file = file.empty() ? file : fs::absolute(file).lexically_normal();
+  sc.sha256 = sha256_hex(yaml_text);
+
+  const YAML::Node root = load_yaml(ctx, yaml_text);
+  const Field top_field{&ctx, root, "", root.Mark()};
+  if (!root.IsMap())
+    fail_at(ctx, root.Mark(), "",
+            "the scenario must be a mapping of keys (format, domain, layers, ...), found " +
+                describe(root));
+  const Map top = top_field.map();
+  top.allow(k_top_keys);
+
+  // format, model, title
+  const Field ff = top.need("format", "write 'format: 1'");
+  sc.format = ff.whole();
+  if (sc.format != 1)
+    ff.fail("format " + std::to_string(sc.format) + " is not supported; this version reads "
+                                                    "format 1");
+  if (auto mf = top.get("model")) {
+    const std::string model = mf->choice({"plane-strain", "axisymmetric", "3d"}, "model");
+    if (model == "3d") mf->fail("model '3d' is not supported by this version");
+    sc.model = model == "axisymmetric" ? Model::axisymmetric : Model::plane_strain;
+  }
+  sc.title = top.has("title") ? top.get("title")->text() : file.stem().string();
+  const bool axi = sc.model == Model::axisymmetric;
+
+  // domain
+  {
+    const Map dm = top.need("domain", "width and depth in m").map();
+    dm.allow({"width", "depth", "length", "boundaries"});
+    sc.domain.width = dm.need("width", "m").positive();
+    sc.domain.depth = dm.need("depth", "m").positive();
+    if (auto lf = dm.get("length")) {
+      sc.domain.length = lf->positive();
+      lf->warn("length is used by 3d models only; ignored");
+    }
+    if (auto bf = dm.get("boundaries")) {
+      const Map bm = bf->map();
+      bm.allow({"sides", "bottom"});
+      const Strings kinds = {"roller", "fixed"};
+      if (auto s = bm.get("sides"))
+        sc.domain.sides = s->choice(kinds, "boundary") == "fixed" ? Boundary::fixed
+                                                                  : Boundary::roller;
+      if (auto b = bm.get("bottom"))
+        sc.domain.bottom = b->choice(kinds, "boundary") == "fixed" ? Boundary::fixed
+                                                                   : Boundary::roller;
+    }
+  }
+
+  // materials (explicit), then layers
+  struct Explicit {
+    Material m;
+    Field f;
+    bool used = false;
+  };
+  std::vector<Explicit> explicit_materials;
+  if (auto mf = top.get("materials")) {
+    const Map mm = mf->map(true);
+    for (const std::string& name : mm.keys()) {
+      const Field f = *mm.get(name);
+      if (name.empty()) f.fail("a material needs a name");
+      explicit_materials.push_back({parse_material(f, name), f, false});
+    }
+  }
+  const Field lf = top.need("layers", "a list of {material, thickness}, top down");
+  const std::vector<Field> layer_items = lf.list();
+  if (layer_items.empty()) lf.fail("at least one layer is needed");
+  for (std::size_t i = 0; i < layer_items.size(); ++i) {
+    const Field& item = layer_items[i];
+    const Map m = item.map();
+    m.allow({"material", "thickness"});
+    Layer layer;
+    const Field matf = m.need("material", "a name from the materials block or the catalogue");
+    layer.material = matf.text();
+    const bool last = i + 1 == layer_items.size();
+    if (auto tf = m.get("thickness"))
+      layer.thickness = tf->positive();
+    else if (!last)
+      m.need("thickness", "m; every layer but the last needs one, the last runs to the bottom");
+    layer.loc = item.loc();
+
+    auto ex = std::find_if(explicit_materials.begin(), explicit_materials.end(),
+                           [&](const Explicit& e) { return e.m.name == layer.material; });
+    if (ex != explicit_materials.end()) {
+      ex->used = true;
+      sc.materials[layer.material] = ex->m;
+    } else if (const CatalogueEntry* ce = find_material(layer.material)) {
+      sc.materials[layer.material] = ce->m;
+    } else {
+      Strings names;
+      for (const auto& e : explicit_materials) names.push_back(e.m.name);
+      for (const auto& n : catalogue_names()) names.push_back(n);
+      matf.fail(with_hint("unknown material '" + layer.material +
+                              "': not in the materials block nor in the built-in catalogue",
+                          suggestion_hint(layer.material, names)));
+    }
+    sc.layers.push_back(layer);
+  }
+  check_layers(layer_items, sc);
+  sc.layers.back().thickness = 0;  // the last layer always runs to the bottom
+  for (const auto& e : explicit_materials)
+    if (!e.used) e.f.warn("material '" + e.m.name + "' is defined but no layer uses it");
+
+  // voids
+  std::vector<VoidInput> voids;
+  if (auto vf = top.get("voids")) {
+    for (const Field& item : vf->list()) voids.push_back(parse_void(item));
+  }
+  for (const auto& in : voids) check_void_in_domain(in, sc);
+  {
+    const double tol = 1e-9 * std::max(sc.domain.width, sc.domain.depth);
+    std::vector<Shape> shapes;
+    for (const auto& in : voids) shapes.push_back(shape_of(in.v));
+    for (std::size_t j = 0; j < voids.size(); ++j)
+      for (std::size_t i = 0; i < j; ++i)
+        if (shapes_overlap(shapes[i], shapes[j], tol))
+          voids[j].self.fail("voids " + std::to_string(i) + " and " + std::to_string(j) +
+                             " overlap or touch (void " + std::to_string(i) + " starts at line " +
+                             std::to_string(voids[i].v.loc.line) + ")");
+  }
+  for (const auto& in : voids) {
+    const Void& v = in.v;
+    if (v.contents == Contents::water && v.water_table_depth) {
+      const double bottom = -bounding_box(shape_of(v)).z_min;
+      if (*v.water_table_depth >= bottom)
+        warn_at(ctx, in.self.mark(), in.self.path + ".contents.water.table-depth",
+                "the water table lies below the void, which therefore holds no water");
+    }
+    sc.voids.push_back(v);
+  }
+  if (voids.empty()) warn_at(ctx, top.self().mark(), "voids", "no voids: the signature is zero");
+
+  // loads
+  bool any_load = false;
+  if (auto lof = top.get("loads")) {
+    const Map lm = lof->map(true);
+    lm.allow({"gravity", "surface", "ground-loss"});
+    if (auto gf = lm.get("gravity")) {
+      sc.loads.gravity = true;
+      any_load = true;
+      const Map gm = gf->map(true);
+      gm.allow({"k0"});
+      if (auto kf = gm.get("k0")) {
+        double k0 = 0;
+        if (kf->node.IsScalar() && kf->node.Scalar() == "auto") {
+          sc.loads.k0.reset();
+        } else if (read_number(kf->node, k0) && std::isfinite(k0)) {
+          if (!(k0 > 0)) kf->fail("k0 must be greater than 0, got " + num(k0));
+          sc.loads.k0 = k0;
+        } else {
+          kf->fail("expected 'auto' or a number greater than 0, found " + describe(kf->node));
+        }
+      }
+    }
+    if (auto sf = lm.get("surface")) {
+      const double half = sc.domain.width / 2;
+      for (const Field& item : sf->list()) {
+        const Map m = item.map();
+        m.allow({"from", "to", "pressure"});
+        SurfaceLoad s;
+        const Field from_f = m.need("from", axi ? "m, inner radius" : "m, left end");
+        const Field to_f = m.need("to", axi ? "m, outer radius" : "m, right end");
+        s.from = from_f.number();
+        s.to = to_f.number();
+        s.pressure = m.need("pressure", "Pa, positive pushing down").number();
+        if (!(s.to > s.from))
+          to_f.fail("'to' (" + num(s.to) + " m) must be greater than 'from' (" + num(s.from) +
+                    " m)");
+        if (axi && s.from < 0)
+          from_f.fail("axisymmetric model: 'from' is a radius and must be 0 or more, got " +
+                      num(s.from));
+        if (!axi && s.from < -half)
+          from_f.fail("the load starts at x = " + num(s.from) + " m, outside the domain (x from " +
+                      num(-half) + " to " + num(half) + " m)");
+        if (s.to > half)
+          to_f.fail("the load ends at " + std::string(axi ? "r = " : "x = ") + num(s.to) +
+                    " m, outside the domain (" + (axi ? "r from 0" : "x from " + num(-half)) +
+                    " to " + num(half) + " m)");
+        s.loc = item.loc();
+        sc.loads.surface.push_back(s);
+        any_load = true;
+      }
+    }
+    if (auto gl = lm.get("ground-loss")) {
+      for (const Field& item : gl->list()) {
+        const Map m = item.map();
+        m.allow({"void", "percent"});
+        GroundLoss g;
+        const Field vf = m.need("void", "index of the void in the voids list, from 0");
+        g.void_index = vf.whole();
+        if (g.void_index < 0 || g.void_index >= static_cast<int>(sc.voids.size()))
+          vf.fail("void index " + std::to_string(g.void_index) + " is out of range: " +
+                  (sc.voids.empty() ? std::string("the scenario has no voids")
+                                    : "the voids are numbered 0 to " +
+                                          std::to_string(sc.voids.size() - 1)));
+        for (const auto& other : sc.loads.ground_loss)
+          if (other.void_index == g.void_index)
+            vf.fail("void " + std::to_string(g.void_index) + " already has a ground loss (" +
+                    other.loc.key + ")");
+        const Field pf = m.need("percent", "volume loss in % of the void's area");
+        g.percent = pf.number();
+        if (!(g.percent > 0 && g.percent < 100))
+          pf.fail("a volume loss must lie between 0 and 100 % (both excluded), got " +
+                  num(g.percent));
+        if (g.percent > 5)
+          pf.warn("a volume loss of " + num(g.percent) +
+                  " % is far above usual tunnelling values (about 0.5-2 %)");
+        g.loc = item.loc();
+        sc.loads.ground_loss.push_back(g);
+        any_load = true;
+      }
+    }
+  }
+  for (const auto& v : sc.voids)
+    if (v.contents != Contents::empty) any_load = true;
+  if (!any_load)
+    warn_at(ctx, top.self().mark(), "loads",
+            "nothing loads the model (no gravity, surface load, ground loss or void contents): "
+            "every displacement is zero");
+
+  // analyses
+  if (auto af = top.get("analyses")) {
+    const Map am = af->map(true);
+    am.allow({"static", "modal", "harmonic", "transient", "ambient"});
+    for (const std::string& name : am.keys()) {
+      const Field f = *am.get(name);
+      const Map options = f.map(true);
+      if (name == "static") {
+        options.allow({});
+        sc.analyses.static_ = true;
+      } else {
+        sc.analyses.not_implemented.push_back(name);
+        warn_at(ctx, f.key_mark, f.path,
+                "the " + name + " analysis is not implemented in this version; skipped");
+      }
+    }
+    if (!sc.analyses.static_)
+      af->warn("no analysis that this version runs (only static is implemented)");
+  } else {
+    sc.analyses.static_ = true;
+  }
+
+  // mesh
+  std::optional<Field> near_field;
+  if (auto mf = top.get("mesh")) {
+    const Map mm = mf->map(true);
+    mm.allow({"order", "size", "near-void", "surface"});
+    if (auto of = mm.get("order")) {
+      sc.mesh.order = of->whole();
+      if (sc.mesh.order != 1 && sc.mesh.order != 2)
+        of->fail("the element order must be 1 (linear) or 2 (quadratic), got " +
+                 std::to_string(sc.mesh.order));
+    }
+    if (auto f = mm.get("size")) sc.mesh.size = f->positive();
+    if (auto f = mm.get("near-void")) {
+      sc.mesh.near_void = f->positive();
+      near_field = f;
+    }
+    if (auto f = mm.get("surface")) sc.mesh.surface = f->positive();
+  }
+  if (sc.mesh.size == 0) sc.mesh.size = std::min(sc.domain.depth, sc.domain.width) / 20;
+  if (sc.mesh.near_void == 0) {
+    double smallest = std::numeric_limits<double>::infinity();
+    for (const auto& v : sc.voids) smallest = std::min(smallest, feature_size(v, shape_of(v)));
+    sc.mesh.near_void = std::isfinite(smallest)
+                            ? std::max(smallest / 8, sc.mesh.size / 200)
+                            : sc.mesh.size / 8;
+  }
+  if (sc.mesh.surface == 0) sc.mesh.surface = sc.mesh.size / 3;
+  if (near_field && sc.mesh.near_void > sc.mesh.size)
+    near_field->warn("near-void " + num(sc.mesh.near_void) +
+                     " m is coarser than the far-field size " + num(sc.mesh.size) + " m");
+
+  // Checks that depend on the mesh sizes: warnings only.
+  for (std::size_t i = 0; i < voids.size(); ++i) {
+    const Void& v = sc.voids[i];
+    const Shape s = shape_of(v);
+    const Box b = bounding_box(s);
+    const double h = sc.mesh.near_void, half = sc.domain.width / 2;
+    const double feature = feature_size(v, s);
+    const Field& self = voids[i].self;
+    if (h > feature / 4)
+      self.warn("the near-void element size " + num(h) + " m is coarse for this void (size " +
+                num(feature) + " m): its outline gets few elements");
+    if (-b.z_max < h)
+      self.warn("the void is closer to the ground surface (" + num(-b.z_max) +
+                " m) than one near-void element size (" + num(h) + " m)");
+    if (sc.domain.depth + b.z_min < h)
+      self.warn("the void is closer to the bottom of the domain (" +
+                num(sc.domain.depth + b.z_min) + " m) than one near-void element size (" +
+                num(h) + " m)");
+    const double side_gap = axi ? half - b.x_max : std::min(half - b.x_max, b.x_min + half);
+    if (side_gap < h)
+      self.warn("the void is closer to a side of the domain (" + num(side_gap) +
+                " m) than one near-void element size (" + num(h) + " m)");
+  }
+
+  // sensors, output
+  if (auto sf = top.get("sensors")) {
+    sf->list();
+    sc.has_sensors = true;
+    warn_at(ctx, sf->key_mark, sf->path,
+            "sensors are read but not evaluated: detectability is computed by a later version");
+  }
+  if (auto of = top.get("output")) {
+    const Map om = of->map(true);
+    om.allow({"dir"});
+    if (auto df = om.get("dir")) {
+      const std::string dir = df->text();
+      if (dir.empty()) df->fail("the output folder name is empty");
+      fs::path p(dir);
+      if (p.is_relative()) p = sc.file.parent_path() / p;
+      sc.output_dir = p.lexically_normal();
+    }
+  }
+  return sc;
+}
+
+Scenario load_scenario(const std::filesystem::path& file) {
+  std::error_code ec;
+  if (!fs::exists(file, ec)) throw InputError(file.string() + ": no such scenario file");
+  if (fs::is_directory(file, ec))
+    throw InputError(file.string() + ": is a folder, not a scenario file");
+  std::ifstream in(file, std::ios::binary);
+  if (!in) throw InputError(file.string() + ": cannot open the scenario file for reading");
+  std::ostringstream buf;
+  buf << in.rdbuf();
+  if (in.bad()) throw InputError(file.string() + ": cannot read the scenario file");
+  return parse_scenario(buf.str(), file);
+}
+
+}  // namespace voidsign::cli

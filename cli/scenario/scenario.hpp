@@ -1,0 +1,122 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+#pragma once
+/// The scenario (input contract, scenario-v1) as typed values. Parsed and validated by
+/// `load_scenario`; after that every value is in SI units and z is up (void positions are
+/// kept as the positive `depth` the user wrote, and converted where geometry is built).
+#include <array>
+#include <filesystem>
+#include <map>
+#include <optional>
+#include <string>
+#include <vector>
+
+namespace voidsign::cli {
+
+/// Where a value came from in the YAML file, for messages after parsing (1-based).
+struct SourceLoc {
+  int line = 0, column = 0;
+  std::string key;  ///< key path, e.g. "voids.1.radius"
+};
+
+enum class Model { plane_strain, axisymmetric, three_d };
+
+/// Isotropic elastic material with strength and damping.
+struct Material {
+  std::string name;
+  double density = 0;   ///< kg/m^3
+  double young = 0;     ///< Pa
+  double poisson = 0;   ///< -
+  double damping = 0;   ///< small-strain damping ratio, -
+  double ucs = 0;       ///< uniaxial compressive strength, Pa (0 = not given)
+  double tensile = 0;   ///< tensile strength, Pa (0 = none)
+  std::string source;   ///< provenance note ("scenario file", or the catalogue's citation)
+};
+
+struct Layer {
+  std::string material;
+  double thickness = 0;  ///< m; 0 for the last layer (runs to the bottom)
+  SourceLoc loc;
+};
+
+enum class Contents { empty, water, pressure };
+
+struct Void {
+  enum class Shape { circle, ellipse, rectangle, polygon };
+  Shape shape = Shape::circle;
+  double x = 0, depth = 0;      ///< centre, m (depth positive down)
+  double radius = 0;            ///< circle, m
+  std::array<double, 2> axes{0, 0};  ///< ellipse semi-axes, m
+  double angle = 0;             ///< ellipse / rectangle rotation, degrees anticlockwise from +x
+  double width = 0, height = 0; ///< rectangle, m
+  std::vector<std::array<double, 2>> points;  ///< polygon (x, depth) pairs, m
+  Contents contents = Contents::empty;
+  double pressure = 0;          ///< Pa, for Contents::pressure
+  /// For Contents::water: depth of the void's own water table [m]; default = the crown.
+  std::optional<double> water_table_depth;
+  SourceLoc loc;
+};
+
+struct SurfaceLoad {
+  double from = 0, to = 0;  ///< x range, m (axisymmetric: r range)
+  double pressure = 0;      ///< Pa, positive pushing down
+  SourceLoc loc;
+};
+
+struct GroundLoss {
+  int void_index = 0;
+  double percent = 0;       ///< volume loss, % of the void's area (2D) or volume (axisymmetric)
+  SourceLoc loc;
+};
+
+struct Loads {
+  bool gravity = false;
+  std::optional<double> k0;  ///< empty = auto, nu/(1-nu) per layer
+  std::vector<SurfaceLoad> surface;
+  std::vector<GroundLoss> ground_loss;
+};
+
+enum class Boundary { roller, fixed };
+
+struct Domain {
+  double width = 0, depth = 0, length = 0;  ///< m
+  Boundary sides = Boundary::roller, bottom = Boundary::fixed;
+};
+
+struct MeshControls {
+  int order = 2;
+  double size = 0;        ///< far-field element size, m (0 = choose from the domain)
+  double near_void = 0;   ///< m (0 = choose from the voids)
+  double surface = 0;     ///< m (0 = choose)
+};
+
+struct Analyses {
+  bool static_ = false;
+  std::vector<std::string> not_implemented;  ///< analyses named in the file that this version skips
+};
+
+struct Scenario {
+  std::filesystem::path file;      ///< absolute path of the scenario file
+  std::string sha256;              ///< of the file's bytes
+  int format = 1;
+  std::string title;
+  Model model = Model::plane_strain;
+  Domain domain;
+  std::map<std::string, Material> materials;  ///< every material the layers use, resolved
+  std::vector<Layer> layers;
+  std::vector<Void> voids;
+  Loads loads;
+  Analyses analyses;
+  MeshControls mesh;
+  bool has_sensors = false;        ///< a sensors block was given (evaluated by a later version)
+  std::filesystem::path output_dir;  ///< resolved against the file's folder; may be empty
+  std::vector<std::string> warnings;
+};
+
+/// Reads, parses and validates a scenario file. Throws InputError with file:line:column and
+/// the key path on any mistake; unknown keys name the nearest valid key.
+Scenario load_scenario(const std::filesystem::path& file);
+
+/// Same, from YAML text (`file` is used for messages and relative paths only).
+Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::path& file);
+
+}  // namespace voidsign::cli

@@ -1,0 +1,76 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+#pragma once
+/// The finite-element mesh shared by every analysis: nodes, cells, and the tags that say which
+/// layer a cell belongs to and whether it lies inside a void. The mesher fills nodes, cells,
+/// layer and void_id; everything else (boundary facets, surface nodes) is derived from those by
+/// `finish_topology`, so no other part of the code depends on the mesher.
+#include <array>
+#include <cstddef>
+#include <string>
+#include <vector>
+
+namespace voidsign::mesh {
+
+/// Cell kinds. Node order follows VTK (= Gmsh): corners first, then edge midpoints
+/// (tri6: 01, 12, 20).
+enum class CellType { tri3, tri6 };
+
+/// Number of nodes of a cell of this type.
+int nodes_per_cell(CellType t);
+/// Number of nodes of a boundary facet (edge in 2D) of this type: 2 (tri3) or 3 (tri6).
+int nodes_per_facet(CellType t);
+/// Polynomial order of the type: 1 or 2.
+int order_of(CellType t);
+
+/// Where a boundary facet lies.
+enum class FacetKind { surface, bottom, left, right, void_wall };
+
+/// A boundary facet of the solid (non-void) part of the mesh.
+struct Facet {
+  std::array<int, 3> nodes{-1, -1, -1};  ///< end nodes, then midside node (tri6 only)
+  FacetKind kind = FacetKind::surface;
+  int cell = -1;     ///< the solid cell the facet belongs to
+  int void_id = -1;  ///< for void walls: index of the void on the other side
+};
+
+/// Node coordinates [m]. 2D models use x = [0] and z = [2] (y = [1] = 0); axisymmetric: r = x.
+using Point = std::array<double, 3>;
+
+struct Mesh {
+  CellType type = CellType::tri6;
+  std::vector<Point> nodes;
+  std::vector<int> cells;    ///< nodes_per_cell(type) node indices per cell, flat
+  std::vector<int> layer;    ///< per cell: index into the scenario's layers (top = 0)
+  std::vector<int> void_id;  ///< per cell: -1 for ground, k when the cell fills void k
+  int n_voids = 0;
+
+  // Derived by finish_topology().
+  std::vector<Facet> facets;       ///< boundary facets of the solid part
+  std::vector<int> surface_nodes;  ///< nodes on z = 0, sorted by x
+  double x_min = 0, x_max = 0, z_min = 0, z_max = 0;
+
+  std::size_t n_nodes() const { return nodes.size(); }
+  std::size_t n_cells() const { return layer.size(); }
+  int npc() const { return nodes_per_cell(type); }
+  /// Pointer to the npc() node indices of cell c.
+  const int* cell(std::size_t c) const { return cells.data() + c * npc(); }
+};
+
+/// Fills facets, surface_nodes and the bounding box from cells and tags. `tol` [m] is the
+/// distance within which a node counts as lying on the block's outer boundary.
+void finish_topology(Mesh& m, double tol);
+
+/// Element shape quality summary.
+struct Quality {
+  double min_quality = 0;   ///< smallest shape measure, 1 = equilateral, 0 = degenerate
+  double mean_quality = 0;
+  double min_jacobian_ratio = 0;  ///< smallest (min det J / max det J) over cells (tri6)
+  std::size_t n_inverted = 0;     ///< cells with det J <= 0 anywhere tested
+  std::size_t worst_cell = 0;
+};
+
+/// Measures every cell: corner-triangle quality 4√3·A/Σℓ² and, for tri6, the sign and spread of
+/// det J at the corners, the midpoints and the centroid.
+Quality measure_quality(const Mesh& m);
+
+}  // namespace voidsign::mesh

@@ -1,0 +1,158 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+#include "solver/assembly/system.hpp"
+
+#include <omp.h>
+
+#include <algorithm>
+#include <numeric>
+
+namespace voidsign::solver {
+
+namespace {
+
+// Node adjacency (including the node itself), each row sorted, as CSR.
+void node_graph(const mesh::Mesh& m, std::vector<int>& start, std::vector<int>& adj) {
+  const std::size_t nn = m.n_nodes();
+  const int npc = m.npc();
+  std::vector<int> count(nn + 1, 0);
+  for (std::size_t c = 0; c < m.n_cells(); ++c) {
+    const int* v = m.cell(c);
+    for (int a = 0; a < npc; ++a) count[v[a] + 1] += npc;
+  }
+  std::partial_sum(count.begin(), count.end(), count.begin());
+  std::vector<int> raw(static_cast<std::size_t>(count[nn]));
+  std::vector<int> fill(count.begin(), count.end() - 1);
+  for (std::size_t c = 0; c < m.n_cells(); ++c) {
+    const int* v = m.cell(c);
+    for (int a = 0; a < npc; ++a)
+      for (int b = 0; b < npc; ++b) raw[fill[v[a]]++] = v[b];
+  }
+  start.assign(nn + 1, 0);
+  adj.clear();
+  adj.reserve(raw.size() / 2);
+  for (std::size_t i = 0; i < nn; ++i) {
+    auto b = raw.begin() + count[i], e = raw.begin() + count[i + 1];
+    std::sort(b, e);
+    e = std::unique(b, e);
+    adj.insert(adj.end(), b, e);
+    start[i + 1] = static_cast<int>(adj.size());
+  }
+}
+
+}  // namespace
+
+SparseMatrix stiffness_pattern(const mesh::Mesh& m) {
+  std::vector<int> start, adj;
+  node_graph(m, start, adj);
+  const int nn = static_cast<int>(m.n_nodes());
+  const int nd = 2 * nn;
+  // Column 2a+i holds rows 2b+j >= 2a+i for every neighbour b >= a.
+  std::vector<int> outer(nd + 1, 0);
+  for (int a = 0; a < nn; ++a) {
+    int above = 0;
+    for (int p = start[a]; p < start[a + 1]; ++p)
+      if (adj[p] > a) ++above;
+    outer[2 * a + 1] = outer[2 * a] + 2 + 2 * above;
+    outer[2 * a + 2] = outer[2 * a + 1] + 1 + 2 * above;
+  }
+  SparseMatrix k(nd, nd);
+  k.resizeNonZeros(outer[nd]);
+  std::copy(outer.begin(), outer.end(), k.outerIndexPtr());
+  int* rows = k.innerIndexPtr();
+  for (int a = 0; a < nn; ++a) {
+    int p0 = outer[2 * a], p1 = outer[2 * a + 1];
+    rows[p0++] = 2 * a;
+    rows[p0++] = 2 * a + 1;
+    rows[p1++] = 2 * a + 1;
+    for (int p = start[a]; p < start[a + 1]; ++p) {
+      const int b = adj[p];
+      if (b <= a) continue;
+      rows[p0++] = 2 * b;
+      rows[p0++] = 2 * b + 1;
+      rows[p1++] = 2 * b;
+      rows[p1++] = 2 * b + 1;
+    }
+  }
+  std::fill(k.valuePtr(), k.valuePtr() + k.nonZeros(), 0.0);
+  return k;
+}
+
+void assemble_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<char>& active,
+                        const std::function<const Elastic&(std::size_t)>& material_of, SparseMatrix& k) {
+  std::fill(k.valuePtr(), k.valuePtr() + k.nonZeros(), 0.0);
+  const int npc = m.npc();
+  const int nd = 2 * npc;
+  const long nc = static_cast<long>(m.n_cells());
+  const int* outer = k.outerIndexPtr();
+  const int* rows = k.innerIndexPtr();
+  double* vals = k.valuePtr();
+#pragma omp parallel
+  {
+    std::vector<double> ke(static_cast<std::size_t>(nd * nd));
+    int dof[12];
+#pragma omp for schedule(dynamic, 512)
+    for (long c = 0; c < nc; ++c) {
+      if (!active[c]) continue;
+      const auto cu = static_cast<std::size_t>(c);
+      stiffness(m, cu, material_of(cu), kin, ke);
+      const int* v = m.cell(cu);
+      for (int a = 0; a < npc; ++a) {
+        dof[2 * a] = 2 * v[a];
+        dof[2 * a + 1] = 2 * v[a] + 1;
+      }
+      for (int q = 0; q < nd; ++q) {
+        const int col = dof[q];
+        const int* b = rows + outer[col];
+        const int* e = rows + outer[col + 1];
+        for (int p = 0; p < nd; ++p) {
+          const int row = dof[p];
+          if (row < col) continue;
+          const auto pos = std::lower_bound(b, e, row) - rows;
+#pragma omp atomic
+          vals[pos] += ke[p * nd + q];
+        }
+      }
+    }
+  }
+}
+
+void constrain_matrix(SparseMatrix& k, const std::vector<char>& fixed) {
+  const int n = static_cast<int>(k.cols());
+  const int* outer = k.outerIndexPtr();
+  const int* rows = k.innerIndexPtr();
+  double* vals = k.valuePtr();
+  double diag_sum = 0;
+  long diag_n = 0;
+  for (int j = 0; j < n; ++j)
+    if (!fixed[j] && vals[outer[j]] > 0) {
+      diag_sum += vals[outer[j]];
+      ++diag_n;
+    }
+  const double scale = diag_n ? diag_sum / static_cast<double>(diag_n) : 1.0;
+  for (int j = 0; j < n; ++j) {
+    // The diagonal comes first in each column of the lower triangle.
+    if (fixed[j] && !(vals[outer[j]] > 0)) vals[outer[j]] = scale;
+    for (int p = outer[j] + 1; p < outer[j + 1]; ++p)
+      if (fixed[j] || fixed[rows[p]]) vals[p] = 0;
+  }
+}
+
+Vector constrained_rhs(const SparseMatrix& k0, const SparseMatrix& kc, const std::vector<char>& fixed,
+                       const Vector& f, const Vector& g) {
+  Vector rhs = f;
+  if (g.size() && g.lpNorm<Eigen::Infinity>() > 0) rhs -= k0.selfadjointView<Eigen::Lower>() * g;
+  const int* outer = kc.outerIndexPtr();
+  const double* vals = kc.valuePtr();
+  for (Eigen::Index j = 0; j < rhs.size(); ++j)
+    if (fixed[j]) rhs[j] = vals[outer[j]] * (g.size() ? g[j] : 0.0);
+  return rhs;
+}
+
+double relative_residual(const SparseMatrix& k_lower, const Vector& u, const Vector& f) {
+  const Vector ku = k_lower.selfadjointView<Eigen::Lower>() * u;
+  const double fn = f.norm();
+  const double scale = fn > 0 ? fn : ku.norm();
+  return scale > 0 ? (ku - f).norm() / scale : 0.0;
+}
+
+}  // namespace voidsign::solver

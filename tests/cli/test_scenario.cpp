@@ -1,0 +1,735 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+// Scenario reader: every rejected input names the file, the line and column of the offending
+// key or value, its key path and a hint; valid input parses to the expected values.
+#include <doctest/doctest.h>
+
+#include <cmath>
+#include <filesystem>
+#include <fstream>
+#include <string>
+#include <unistd.h>
+
+#include "cli/errors.hpp"
+#include "cli/scenario/catalogue.hpp"
+#include "cli/scenario/scenario.hpp"
+#include "cli/scenario/sha256.hpp"
+#include "cli/scenario/suggest.hpp"
+
+using namespace voidsign::cli;
+
+namespace {
+
+const std::string k_file = "case.yaml";
+
+// Two layers in a 100 m × 50 m block: a valid start for most cases (5 lines).
+const std::string k_head =
+    "format: 1\n"
+    "domain: {width: 100, depth: 50}\n"
+    "layers:\n"
+    "  - {material: chalk, thickness: 10}\n"
+    "  - {material: limestone-strong}\n";
+const std::string k_gravity = "loads: {gravity: {k0: auto}}\n";
+
+std::string with_voids(const std::string& items) { return k_head + "voids:\n" + items; }
+
+std::string error_of(const std::string& yaml) {
+  try {
+    parse_scenario(yaml, k_file);
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "(accepted without error)";
+}
+
+bool has(const std::string& s, const std::string& part) { return s.find(part) != std::string::npos; }
+
+// "case.yaml:LINE:COL:" of the `nth` occurrence of `token` in `text` (-1: the last one).
+std::string at(const std::string& text, const std::string& token, int nth) {
+  std::size_t pos = nth < 0 ? text.rfind(token) : text.find(token);
+  for (int k = 0; k < nth && pos != std::string::npos; ++k) pos = text.find(token, pos + 1);
+  REQUIRE_MESSAGE(pos != std::string::npos, "token not in the test text: " << token);
+  int line = 1;
+  std::size_t line_start = 0;
+  for (std::size_t i = 0; i < pos; ++i)
+    if (text[i] == '\n') {
+      ++line;
+      line_start = i + 1;
+    }
+  return k_file + ":" + std::to_string(line) + ":" + std::to_string(pos - line_start + 1) + ":";
+}
+
+// The error message of `yaml` starts at `token` (its nth occurrence, by default the last),
+// names `key` and contains `hint`.
+void expect_error(const std::string& yaml, const std::string& token, const std::string& key,
+                  const std::string& hint, int nth = -1) {
+  const std::string msg = error_of(yaml);
+  INFO("yaml:\n" << yaml << "\nmessage: " << msg);
+  CHECK(msg.rfind(at(yaml, token, nth), 0) == 0);
+  CHECK(has(msg, "key '" + key + "': "));
+  CHECK(has(msg, hint));
+}
+
+bool any_warning(const Scenario& sc, const std::string& part) {
+  for (const auto& w : sc.warnings)
+    if (has(w, part)) return true;
+  return false;
+}
+
+}  // namespace
+
+TEST_CASE("edit distance and suggestions") {
+  CHECK(edit_distance("radius", "radius") == 0);
+  CHECK(edit_distance("raduis", "radius") == 1);  // adjacent swap
+  CHECK(edit_distance("near_void", "near-void") == 0);
+  CHECK(edit_distance("Depth", "depth") == 0);
+  CHECK(edit_distance("kitten", "sitting") == 3);
+  CHECK(edit_distance("", "abc") == 3);
+  const std::vector<std::string> keys = {"shape", "x", "depth", "radius", "contents"};
+  CHECK(nearest_word("raduis", keys) == "radius");
+  CHECK(nearest_word("dept", keys) == "depth");
+  CHECK_FALSE(nearest_word("colour", keys).has_value());
+  CHECK(suggestion_hint("raduis", keys) == "did you mean 'radius'?");
+  CHECK(suggestion_hint("colour", keys) == "expected one of: shape, x, depth, radius, contents");
+}
+
+TEST_CASE("sha256 test vectors") {
+  CHECK(sha256_hex("abc") ==
+        "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
+  CHECK(sha256_hex("") == "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855");
+  CHECK(sha256_hex("abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq") ==
+        "248d6a61d20638b8e5c026930c3e6039a33ce45964ff2167f6ecedd419db06c1");
+  CHECK(sha256_hex(std::string(1000000, 'a')) ==
+        "cdc76e5c9914fb9281a1c7e284d73e67f1809a48a497200e046d39ccc7112cd0");
+}
+
+TEST_CASE("material catalogue") {
+  const auto& cat = material_catalogue();
+  CHECK(cat.size() >= 10);
+  for (const auto& e : cat) {
+    INFO(e.m.name);
+    CHECK(e.m.density > 0);
+    CHECK(e.m.young > 0);
+    CHECK(e.m.poisson > -1);
+    CHECK(e.m.poisson < 0.5);
+    CHECK(e.m.damping > 0);
+    CHECK(e.m.ucs >= 0);
+    CHECK(e.m.tensile >= 0);
+    CHECK(e.vp > e.vs);
+    CHECK(e.vs > 0);
+    CHECK_FALSE(e.description.empty());
+    CHECK_FALSE(e.m.source.empty());
+    for (const auto* s : {&e.src_density, &e.src_young, &e.src_poisson, &e.src_damping,
+                          &e.src_ucs, &e.src_tensile, &e.src_vp, &e.src_vs})
+      CHECK_FALSE(s->empty());
+    CHECK(e.m.name.find_first_not_of("abcdefghijklmnopqrstuvwxyz-") == std::string::npos);
+    CHECK(find_material(e.m.name) == &e);
+  }
+  CHECK(find_material("no-such-rock") == nullptr);
+  // Rocks have a strength; uncemented soils have none (0), said so in the note.
+  CHECK(find_material("granite")->m.ucs > 0);
+  CHECK(find_material("dense-sand")->m.ucs == 0);
+  CHECK(has(find_material("dense-sand")->src_ucs, "0 is used"));
+  CHECK(has(find_material("limestone-weak")->src_young, "from memory"));
+  CHECK(has(find_material("granite")->src_density, "secondary source"));
+  CHECK(has(find_material("granite")->src_damping, "derived"));
+  CHECK(has(find_material("basalt")->src_young, "verified"));
+  // The basalt shear-wave speed is derived from its verified E and nu: recompute it.
+  const auto& b = find_material("basalt")->m;
+  const double vs = std::sqrt(b.young / (2 * (1 + b.poisson)) / b.density);
+  CHECK(vs == doctest::Approx(find_material("basalt")->vs).epsilon(0.002));
+}
+
+TEST_CASE("a full valid scenario parses to the expected values") {
+  const std::string yaml = R"(format: 1
+title: Test gallery under an invented orchard
+model: plane-strain
+domain:
+  width: 200
+  depth: 80
+  boundaries: {sides: fixed, bottom: roller}
+materials:
+  cap-silt:
+    density: 1700
+    vp: 600
+    vs: 250
+  weak-chalk:
+    density: 1800
+    young: 4.0e9
+    poisson: 0.28
+    damping: 0.02
+    ucs: 5.0e6
+    tensile: 0.3e6
+layers:
+  - {material: cap-silt, thickness: 3}
+  - {material: weak-chalk, thickness: 40}
+  - {material: granite}
+voids:
+  - {shape: circle, x: 0, depth: 15, radius: 2.5}
+  - {shape: rectangle, x: 30, depth: 20, width: 6, height: 2.5, contents: water}
+  - {shape: ellipse, x: -40, depth: 25, axes: [4, 1.5], angle: 20, contents: {pressure: -2.0e4}}
+  - {shape: polygon, points: [[-5, 30], [5, 30], [5, 34], [-5, 34]], contents: {water: {table-depth: 31}}}
+loads:
+  gravity: {k0: 0.6}
+  surface:
+    - {from: -5, to: 5, pressure: 50.0e3}
+  ground-loss:
+    - {void: 0, percent: 1.0}
+analyses:
+  static: {}
+mesh: {order: 1, size: 4, near-void: 0.2, surface: 1}
+output: {dir: out/gallery}
+)";
+  const Scenario sc = parse_scenario(yaml, "/tmp/voidsign-test/site.yaml");
+  INFO("warnings: " << sc.warnings.size() << (sc.warnings.empty() ? "" : sc.warnings[0]));
+  CHECK(sc.warnings.empty());
+  CHECK(sc.file == std::filesystem::path("/tmp/voidsign-test/site.yaml"));
+  CHECK(sc.sha256 == sha256_hex(yaml));
+  CHECK(sc.format == 1);
+  CHECK(sc.title == "Test gallery under an invented orchard");
+  CHECK(sc.model == Model::plane_strain);
+  CHECK(sc.domain.width == 200);
+  CHECK(sc.domain.depth == 80);
+  CHECK(sc.domain.sides == Boundary::fixed);
+  CHECK(sc.domain.bottom == Boundary::roller);
+
+  REQUIRE(sc.materials.size() == 3);
+  const Material& silt = sc.materials.at("cap-silt");
+  const double g = 1700.0 * 250 * 250;
+  const double nu = (600.0 * 600 - 2 * 250.0 * 250) / (2 * (600.0 * 600 - 250.0 * 250));
+  CHECK(silt.poisson == doctest::Approx(nu));
+  CHECK(silt.poisson == doctest::Approx(0.394958).epsilon(1e-5));
+  CHECK(silt.young == doctest::Approx(2 * g * (1 + nu)));
+  CHECK(silt.damping == 0);
+  CHECK(has(silt.source, "vp and vs"));
+  CHECK(has(silt.source, "damping"));
+  const Material& chalk = sc.materials.at("weak-chalk");
+  CHECK(chalk.young == 4.0e9);
+  CHECK(chalk.poisson == 0.28);
+  CHECK(chalk.damping == 0.02);
+  CHECK(chalk.ucs == 5.0e6);
+  CHECK(chalk.tensile == 0.3e6);
+  CHECK(chalk.source == "scenario file");
+  CHECK(sc.materials.at("granite").young == find_material("granite")->m.young);
+  CHECK(has(sc.materials.at("granite").source, "catalogue"));
+
+  REQUIRE(sc.layers.size() == 3);
+  CHECK(sc.layers[0].material == "cap-silt");
+  CHECK(sc.layers[0].thickness == 3);
+  CHECK(sc.layers[1].thickness == 40);
+  CHECK(sc.layers[2].thickness == 0);
+  CHECK(sc.layers[1].loc.line == 22);
+  CHECK(sc.layers[1].loc.key == "layers.1");
+
+  REQUIRE(sc.voids.size() == 4);
+  const Void& c = sc.voids[0];
+  CHECK(c.shape == Void::Shape::circle);
+  CHECK(c.x == 0);
+  CHECK(c.depth == 15);
+  CHECK(c.radius == 2.5);
+  CHECK(c.contents == Contents::empty);
+  CHECK(c.loc.line == 25);
+  CHECK(c.loc.column == 5);
+  CHECK(c.loc.key == "voids.0");
+  const Void& r = sc.voids[1];
+  CHECK(r.shape == Void::Shape::rectangle);
+  CHECK(r.width == 6);
+  CHECK(r.height == 2.5);
+  CHECK(r.angle == 0);
+  CHECK(r.contents == Contents::water);
+  CHECK_FALSE(r.water_table_depth.has_value());
+  const Void& e = sc.voids[2];
+  CHECK(e.shape == Void::Shape::ellipse);
+  CHECK(e.axes[0] == 4);
+  CHECK(e.axes[1] == 1.5);
+  CHECK(e.angle == 20);
+  CHECK(e.contents == Contents::pressure);
+  CHECK(e.pressure == -2.0e4);  // a negative gauge pressure is allowed
+  const Void& p = sc.voids[3];
+  CHECK(p.shape == Void::Shape::polygon);
+  REQUIRE(p.points.size() == 4);
+  CHECK(p.points[2][0] == 5);
+  CHECK(p.points[2][1] == 34);
+  CHECK(p.x == doctest::Approx(0));  // area centroid
+  CHECK(p.depth == doctest::Approx(32));
+  CHECK(p.contents == Contents::water);
+  CHECK(p.water_table_depth == 31);
+
+  CHECK(sc.loads.gravity);
+  CHECK(sc.loads.k0 == 0.6);
+  REQUIRE(sc.loads.surface.size() == 1);
+  CHECK(sc.loads.surface[0].from == -5);
+  CHECK(sc.loads.surface[0].to == 5);
+  CHECK(sc.loads.surface[0].pressure == 50.0e3);
+  REQUIRE(sc.loads.ground_loss.size() == 1);
+  CHECK(sc.loads.ground_loss[0].void_index == 0);
+  CHECK(sc.loads.ground_loss[0].percent == 1.0);
+
+  CHECK(sc.analyses.static_);
+  CHECK(sc.analyses.not_implemented.empty());
+  CHECK(sc.mesh.order == 1);
+  CHECK(sc.mesh.size == 4);
+  CHECK(sc.mesh.near_void == 0.2);
+  CHECK(sc.mesh.surface == 1);
+  CHECK_FALSE(sc.has_sensors);
+  CHECK(sc.output_dir == std::filesystem::path("/tmp/voidsign-test/out/gallery"));
+}
+
+TEST_CASE("defaults") {
+  const Scenario sc = parse_scenario(
+      with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2}\n") + k_gravity,
+      "/tmp/voidsign-test/quiet-field.yaml");
+  CHECK(sc.title == "quiet-field");
+  CHECK(sc.model == Model::plane_strain);
+  CHECK(sc.domain.sides == Boundary::roller);
+  CHECK(sc.domain.bottom == Boundary::fixed);
+  CHECK(sc.loads.gravity);
+  CHECK_FALSE(sc.loads.k0.has_value());  // auto
+  CHECK(sc.analyses.static_);            // no analyses block: static
+  CHECK(sc.mesh.order == 2);
+  CHECK(sc.mesh.size == doctest::Approx(2.5));       // min(50, 100) / 20
+  CHECK(sc.mesh.near_void == doctest::Approx(0.25));  // radius / 8
+  CHECK(sc.mesh.surface == doctest::Approx(2.5 / 3));
+  CHECK(sc.output_dir.empty());
+  CHECK(sc.warnings.empty());
+  CHECK(sc.materials.size() == 2);
+  CHECK(sc.materials.at("chalk").density == find_material("chalk")->m.density);
+
+  // near-void: the smallest feature over the voids / 8, but at least size / 200.
+  const Scenario two = parse_scenario(
+      with_voids("  - {shape: ellipse, x: -20, depth: 15, axes: [4, 1.6]}\n"
+                 "  - {shape: rectangle, x: 20, depth: 15, width: 6, height: 2}\n"),
+      k_file);
+  CHECK(two.mesh.near_void == doctest::Approx(1.0 / 8));  // rectangle: height/2 / 8
+  const Scenario tiny =
+      parse_scenario(with_voids("  - {shape: circle, x: 0, depth: 15, radius: 0.04}\n"), k_file);
+  CHECK(tiny.mesh.near_void == doctest::Approx(2.5 / 200));
+  const Scenario poly = parse_scenario(
+      with_voids("  - {shape: polygon, points: [[0, 10], [8, 10], [8, 14], [0, 14]]}\n"), k_file);
+  CHECK(poly.mesh.near_void == doctest::Approx(2.0 / 8));  // bbox 8 × 4: 4/2 / 8
+}
+
+TEST_CASE("load_scenario reads a file and resolves the output folder next to it") {
+  const auto dir = std::filesystem::temp_directory_path() /
+                   ("voidsign-scn-" + std::to_string(::getpid()));
+  std::filesystem::create_directories(dir);
+  const auto file = dir / "scn.yaml";
+  const std::string text =
+      with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2}\n") + "output: {dir: res}\n";
+  {
+    std::ofstream(file, std::ios::binary) << text;
+  }
+  const Scenario sc = load_scenario(file);
+  CHECK(sc.file == std::filesystem::absolute(file));
+  CHECK(sc.sha256 == sha256_hex(text));
+  CHECK(sc.output_dir == dir / "res");
+  std::filesystem::remove_all(dir);
+
+  const std::string absolute_out = with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2}\n") +
+                                   "output: {dir: /srv/results/x}\n";
+  CHECK(parse_scenario(absolute_out, "/a/b.yaml").output_dir == "/srv/results/x");
+}
+
+TEST_CASE("missing file") {
+  try {
+    load_scenario("/nonexistent-voidsign/nofile.yaml");
+    FAIL("no error");
+  } catch (const InputError& e) {
+    CHECK(has(e.what(), "/nonexistent-voidsign/nofile.yaml"));
+    CHECK(has(e.what(), "no such scenario file"));
+  }
+}
+
+TEST_CASE("YAML syntax errors carry the position") {
+  const std::string yaml = "format: 1\ndomain: {width: 100, depth: 50\nlayers: []\n";
+  const std::string msg = error_of(yaml);
+  CHECK(has(msg, "case.yaml:3:"));
+  CHECK(has(msg, "YAML syntax error"));
+  const std::string tab = "format: 1\ndomain:\n  width: 100\n   depth: 50\n";
+  CHECK(has(error_of(tab), "case.yaml:4:"));
+  CHECK(has(error_of(""), "case.yaml:1:1: the scenario is empty"));
+  CHECK(has(error_of("- a\n- b\n"), "must be a mapping"));
+  CHECK(has(error_of(k_head + "---\nformat: 1\n"), "case.yaml:7:1:"));
+}
+
+TEST_CASE("unknown keys name the nearest valid key") {
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 15, raduis: 2}\n"), "raduis",
+               "voids.0.raduis", "unknown key 'raduis' (did you mean 'radius'?)");
+  expect_error(k_head + "meshh: {size: 2}\n", "meshh", "meshh",
+               "unknown key 'meshh' (did you mean 'mesh'?)");
+  expect_error(k_head + "mesh: {near_void: 2}\n", "near_void", "mesh.near_void",
+               "did you mean 'near-void'?");
+  expect_error(k_head + "mesh: {colour: red}\n", "colour", "mesh.colour",
+               "expected one of: order, size, near-void, surface");
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2, angle: 10}\n"),
+               "angle", "voids.0.angle", "unknown key 'angle'");
+  expect_error(k_head + "analyses: {static: {tolerance: 1}}\n", "tolerance",
+               "analyses.static.tolerance", "no keys are valid here");
+  expect_error(k_head + "mesh: {size: 2, size: 3}\n", "size", "mesh.size",
+               "duplicate key (first given at line 6)");
+  expect_error(k_head + "model: plane-stress\n", "plane-stress", "model",
+               "unknown model 'plane-stress' (did you mean 'plane-strain'?)");
+  expect_error(with_voids("  - {shape: circel, x: 0, depth: 15, radius: 2}\n"), "circel",
+               "voids.0.shape", "did you mean 'circle'?");
+}
+
+TEST_CASE("wrong types") {
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 15, radius: big}\n"), "big",
+               "voids.0.radius", "expected a number, found the value 'big'");
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 15, radius: \"2\"}\n"), "\"2\"",
+               "voids.0.radius", "remove the quotes");
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: .inf, radius: 2}\n"), ".inf",
+               "voids.0.depth", "expected a finite number");
+  const std::string list_for_map =
+      "format: 1\ndomain: [100, 50]\nlayers:\n  - {material: chalk}\n";
+  expect_error(list_for_map, "[100", "domain", "expected a mapping, found a list");
+  const std::string map_for_list =
+      "format: 1\ndomain: {width: 100, depth: 50}\nlayers: {material: chalk}\n";
+  expect_error(map_for_list, "{material", "layers", "expected a list, found a mapping");
+  expect_error(with_voids("  - {shape: ellipse, x: 0, depth: 15, axes: 4}\n"), "4}",
+               "voids.0.axes", "expected a list, found the value '4'");
+  expect_error(with_voids("  - {shape: ellipse, x: 0, depth: 15, axes: [4, 2, 1]}\n"), "[4",
+               "voids.0.axes", "expected two semi-axes");
+  expect_error(k_head + "mesh: {order: 1.5}\n", "1.5", "mesh.order", "expected a whole number");
+  expect_error(k_head + "mesh: {order: 3}\n", "3}", "mesh.order", "must be 1 (linear) or 2");
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2, contents: air}\n"),
+               "air", "voids.0.contents", "unknown contents 'air'");
+  expect_error(k_head + "sensors: {kind: levelling}\n", "{kind", "sensors", "expected a list");
+  expect_error(k_head + "loads: {gravity: {k0: sometimes}}\n", "sometimes", "loads.gravity.k0",
+               "expected 'auto' or a number greater than 0");
+}
+
+TEST_CASE("missing required keys") {
+  const std::string yaml = with_voids("  - {shape: circle, x: 0, depth: 15}\n");
+  expect_error(yaml, "{shape", "voids.0.radius", "required key is missing");
+  expect_error("domain: {width: 100, depth: 50}\nlayers:\n  - {material: chalk}\n", "domain",
+               "format", "required key is missing (write 'format: 1')");
+  expect_error("format: 1\ndomain: {depth: 50}\nlayers:\n  - {material: chalk}\n", "{depth",
+               "domain.width", "required key is missing");
+  expect_error("format: 1\ndomain: {width: 100, depth: 50}\n", "format", "layers",
+               "required key is missing");
+  expect_error(
+      "format: 1\ndomain: {width: 100, depth: 50}\nlayers:\n  - {material: chalk}\n"
+      "  - {material: granite}\n",
+      "{material: chalk", "layers.0.thickness", "every layer but the last needs one");
+  expect_error(
+      "format: 1\ndomain: {width: 100, depth: 50}\nmaterials:\n  rock-a: {density: 2000, "
+      "young: 1.0e9}\nlayers:\n  - {material: rock-a}\n",
+      "{density", "materials.rock-a.poisson", "required key is missing");
+  expect_error(
+      "format: 1\ndomain: {width: 100, depth: 50}\nmaterials:\n  rock-a: {density: 2000}\n"
+      "layers:\n  - {material: rock-a}\n",
+      "{density", "materials.rock-a", "needs young and poisson, or the wave speeds vp and vs");
+  expect_error(
+      "format: 1\ndomain: {width: 100, depth: 50}\nmaterials:\n  rock-a: {density: 2000, "
+      "young: 1.0e9, poisson: 0.3, vs: 300}\nlayers:\n  - {material: rock-a}\n",
+      "300", "materials.rock-a.vs", "not both");
+  expect_error(with_voids("  - {x: 0, depth: 15, radius: 2}\n"), "{x", "voids.0.shape",
+               "required key is missing");
+}
+
+namespace {
+std::string with_material(const std::string& spec) {
+  return "format: 1\ndomain: {width: 100, depth: 50}\nmaterials:\n  rock-a: " + spec +
+         "\nlayers:\n  - {material: rock-a}\n";
+}
+}  // namespace
+
+TEST_CASE("material values") {
+  expect_error(with_material("{density: 2000, young: 1.0e9, poisson: 0.5}"), "0.5",
+               "materials.rock-a.poisson", "between -1 and 0.5");
+  expect_error(with_material("{density: 2000, young: 1.0e9, poisson: -1}"), "-1",
+               "materials.rock-a.poisson", "between -1 and 0.5");
+  expect_error(with_material("{density: 2000, young: -1.0e9, poisson: 0.3}"), "-1.0e9",
+               "materials.rock-a.young", "must be greater than 0");
+  expect_error(with_material("{density: 0, young: 1.0e9, poisson: 0.3}"), "0,",
+               "materials.rock-a.density", "must be greater than 0");
+  expect_error(with_material("{density: 2000, vp: 1000, vs: 1000}"), "1000}",
+               "materials.rock-a.vs", "must be smaller than vp");
+  expect_error(with_material("{density: 2000, vp: 1100, vs: 1000}"), "1000}",
+               "materials.rock-a.vs", "outside (-1, 0.5)");
+  expect_error(with_material("{density: 2000, vp: 1000, vs: 0}"), "0}", "materials.rock-a.vs",
+               "must be greater than 0");
+  expect_error(with_material("{density: 2000, young: 1.0e9, poisson: 0.3, damping: -0.1}"),
+               "-0.1", "materials.rock-a.damping", "must be 0 or more");
+  // vp/vs between 2/sqrt(3) and sqrt(2): a negative but valid Poisson's ratio, with a warning.
+  const Scenario sc = parse_scenario(with_material("{density: 2000, vp: 1300, vs: 1000}"), k_file);
+  CHECK(sc.materials.at("rock-a").poisson < 0);
+  CHECK(any_warning(sc, "negative Poisson's ratio"));
+  // An explicit material replaces a catalogue entry of the same name.
+  const Scenario over = parse_scenario(
+      "format: 1\ndomain: {width: 100, depth: 50}\nmaterials:\n  chalk: {density: 1500, "
+      "young: 1.0e9, poisson: 0.2}\nlayers:\n  - {material: chalk}\n",
+      k_file);
+  CHECK(over.materials.at("chalk").density == 1500);
+  // An unused explicit material is worth a warning.
+  const Scenario unused = parse_scenario(
+      "format: 1\ndomain: {width: 100, depth: 50}\nmaterials:\n  spare: {density: 1500, "
+      "young: 1.0e9, poisson: 0.2}\nlayers:\n  - {material: chalk}\n",
+      k_file);
+  CHECK(any_warning(unused, "no layer uses it"));
+  CHECK(unused.materials.count("spare") == 0);
+}
+
+TEST_CASE("unknown material names suggest the nearest") {
+  const std::string yaml =
+      "format: 1\ndomain: {width: 100, depth: 50}\nlayers:\n  - {material: chalky, thickness: "
+      "5}\n  - {material: granite}\n";
+  expect_error(yaml, "chalky", "layers.0.material", "did you mean 'chalk'?");
+  expect_error(yaml, "chalky", "layers.0.material", "unknown material 'chalky'");
+}
+
+TEST_CASE("non-positive sizes") {
+  struct Case {
+    std::string yaml, token, key;
+  };
+  const std::string layers = "layers:\n  - {material: chalk}\n";
+  const std::string circle = "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\n";
+  const std::vector<Case> cases = {
+      {"format: 1\ndomain: {width: -100, depth: 50}\n" + layers, "-100", "domain.width"},
+      {"format: 1\ndomain: {width: 100, depth: 0}\n" + layers, "0}", "domain.depth"},
+      {k_head + "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 0}\n", "0}",
+       "voids.0.radius"},
+      {k_head + "voids:\n  - {shape: ellipse, x: 0, depth: 15, axes: [4, 0]}\n", "0]",
+       "voids.0.axes.1"},
+      {k_head + "voids:\n  - {shape: rectangle, x: 0, depth: 15, width: 4, height: -1}\n", "-1",
+       "voids.0.height"},
+      {"format: 1\ndomain: {width: 100, depth: 50}\nlayers:\n  - {material: chalk, thickness: "
+       "0}\n  - {material: granite}\n",
+       "0}", "layers.0.thickness"},
+      {k_head + circle + "mesh: {size: 0}\n", "0}", "mesh.size"},
+      {k_head + circle + "mesh: {near-void: -0.1}\n", "-0.1", "mesh.near-void"},
+      {k_head + circle + "mesh: {surface: 0}\n", "0}", "mesh.surface"},
+  };
+  for (const auto& c : cases) expect_error(c.yaml, c.token, c.key, "must be greater than 0");
+}
+
+TEST_CASE("k0") {
+  expect_error(k_head + "loads: {gravity: {k0: -0.5}}\n", "-0.5", "loads.gravity.k0",
+               "k0 must be greater than 0");
+  expect_error(k_head + "loads: {gravity: {k0: 0}}\n", "0}", "loads.gravity.k0",
+               "k0 must be greater than 0");
+}
+
+TEST_CASE("layer thicknesses against the domain depth") {
+  const std::string start = "format: 1\ndomain: {width: 100, depth: 50}\nlayers:\n";
+  // The last layer runs to the bottom: the others must end above it.
+  expect_error(start + "  - {material: chalk, thickness: 10}\n  - {material: shale, thickness: "
+                       "40}\n  - {material: granite}\n",
+               "40", "layers.1.thickness", "at or below the bottom of the domain");
+  // Every layer has a thickness: their sum may reach, not pass, the bottom.
+  expect_error(start + "  - {material: chalk, thickness: 10}\n  - {material: granite, "
+                       "thickness: 45}\n",
+               "45", "layers.1.thickness", "below the bottom of the domain");
+  const Scenario exact = parse_scenario(
+      start + "  - {material: chalk, thickness: 10}\n  - {material: granite, thickness: 40}\n",
+      k_file);
+  CHECK(exact.layers.back().thickness == 0);
+  CHECK_FALSE(any_warning(exact, "last layer"));
+  const Scenario shorter = parse_scenario(
+      start + "  - {material: chalk, thickness: 10}\n  - {material: granite, thickness: 20}\n",
+      k_file);
+  CHECK(any_warning(shorter, "the last layer runs to the bottom of the domain: 40 m thick"));
+  CHECK(shorter.layers.back().thickness == 0);
+}
+
+TEST_CASE("voids inside the domain") {
+  expect_error(with_voids("  - {shape: circle, x: 49, depth: 15, radius: 2}\n"), "49",
+               "voids.0.x", "right side");
+  expect_error(with_voids("  - {shape: circle, x: -49, depth: 15, radius: 2}\n"), "-49",
+               "voids.0.x", "left side");
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 49, radius: 2}\n"), "49",
+               "voids.0.depth", "below the bottom of the domain");
+  expect_error(with_voids("  - {shape: polygon, points: [[0, 40], [3, 40], [3, 52]]}\n"),
+               "[3, 52]", "voids.0.points.2", "below the bottom of the domain");
+  expect_error(with_voids("  - {shape: polygon, points: [[0, 40], [52, 40], [3, 45]]}\n"),
+               "[52, 40]", "voids.0.points.1", "right side");
+}
+
+TEST_CASE("voids breaking the surface") {
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 1.5, radius: 2}\n"), "1.5",
+               "voids.0.depth", "breaks the ground surface");
+  // An ellipse 8 m × 2 m at 3 m depth fits lying down, not standing up.
+  CHECK_NOTHROW(parse_scenario(with_voids("  - {shape: ellipse, x: 0, depth: 3, axes: [4, 1]}\n"),
+                               k_file));
+  expect_error(with_voids("  - {shape: ellipse, x: 0, depth: 3, axes: [4, 1], angle: 90}\n"), "3,",
+               "voids.0.depth", "its top is at depth -1 m");
+  // A rectangle 8 m × 1 m at 3 m depth: flat it fits; turned by 45° its corner is at 0.18 m.
+  CHECK_NOTHROW(parse_scenario(
+      with_voids("  - {shape: rectangle, x: 0, depth: 3, width: 8, height: 1}\n"), k_file));
+  expect_error(with_voids("  - {shape: rectangle, x: 0, depth: 3, width: 8, height: 1, angle: 45}\n"),
+               "3,", "voids.0.depth", "breaks the ground surface");
+  expect_error(with_voids("  - {shape: polygon, points: [[0, 5], [2, -0.5], [4, 5]]}\n"),
+               "[2, -0.5]", "voids.0.points.1", "breaks the ground surface");
+  expect_error(with_voids("  - {shape: polygon, points: [[0, 5], [2, 0], [4, 5]]}\n"), "[2, 0]",
+               "voids.0.points.1", "breaks the ground surface");
+}
+
+TEST_CASE("voids close to the boundaries are a warning") {
+  const Scenario sc =
+      parse_scenario(with_voids("  - {shape: circle, x: 0, depth: 2.1, radius: 2}\n"), k_file);
+  CHECK(any_warning(sc, "closer to the ground surface"));
+  CHECK(any_warning(sc, "case.yaml:7:5: key 'voids.0'"));
+  const Scenario side =
+      parse_scenario(with_voids("  - {shape: circle, x: 47.9, depth: 15, radius: 2}\n"), k_file);
+  CHECK(any_warning(side, "closer to a side"));
+  const Scenario bottom =
+      parse_scenario(with_voids("  - {shape: circle, x: 0, depth: 47.9, radius: 2}\n"), k_file);
+  CHECK(any_warning(bottom, "closer to the bottom"));
+}
+
+TEST_CASE("overlapping voids") {
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2}\n"
+                          "  - {shape: rectangle, x: 3, depth: 15, width: 4, height: 1}\n"),
+               "{shape: rectangle", "voids.1", "voids 0 and 1 overlap");
+  // A small circle wholly inside an ellipse.
+  expect_error(with_voids("  - {shape: ellipse, x: 0, depth: 15, axes: [6, 3]}\n"
+                          "  - {shape: circle, x: 10, depth: 30, radius: 1}\n"
+                          "  - {shape: circle, x: 1, depth: 15, radius: 0.5}\n"),
+               "{shape: circle, x: 1,", "voids.2", "voids 0 and 2 overlap");
+  // A polygon crossing a circle.
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2}\n"
+                          "  - {shape: polygon, points: [[1, 10], [2, 10], [2, 20], [1, 20]]}\n"),
+               "{shape: polygon", "voids.1", "voids 0 and 1 overlap");
+  // Bounding boxes overlap but the circles do not (centres 4.95 m apart, radii 2 m).
+  CHECK_NOTHROW(parse_scenario(with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2}\n"
+                                          "  - {shape: circle, x: 3.5, depth: 18.5, radius: 2}\n"),
+                               k_file));
+}
+
+TEST_CASE("polygons") {
+  expect_error(with_voids("  - {shape: polygon, points: [[0, 10], [4, 10]]}\n"), "[[0",
+               "voids.0.points", "at least 3 points, found 2");
+  expect_error(with_voids("  - {shape: polygon, points: [[0, 10], [4, 14], [4, 10], [0, 14]]}\n"),
+               "[[0", "voids.0.points", "crosses itself: edges 0-1 and 2-3");
+  expect_error(
+      with_voids("  - {shape: polygon, points: [[0, 10], [4, 10], [4, 14], [0, 14], [0, 10]]}\n"),
+      "[0, 10]]", "voids.0.points.4", "the last point repeats the first");
+  expect_error(with_voids("  - {shape: polygon, points: [[0, 10], [4, 10], [8, 10]]}\n"), "[[0",
+               "voids.0.points", "no area");
+  expect_error(with_voids("  - {shape: polygon, points: [[0, 10], [4, 10, 1], [4, 14]]}\n"),
+               "[4, 10, 1]", "voids.0.points.1", "expected a pair [x, depth]");
+  // Stored as given, in the given order (here clockwise on screen).
+  const Scenario sc = parse_scenario(
+      with_voids("  - {shape: polygon, points: [[0, 10], [0, 14], [6, 14], [6, 10], [3, 12]]}\n"),
+      k_file);
+  REQUIRE(sc.voids[0].points.size() == 5);
+  CHECK(sc.voids[0].points[4][0] == 3);
+  CHECK(sc.voids[0].points[4][1] == 12);
+}
+
+TEST_CASE("void contents") {
+  const Scenario sc = parse_scenario(
+      with_voids("  - {shape: circle, x: -20, depth: 15, radius: 2, contents: {pressure: -5.0e3}}\n"
+                 "  - {shape: circle, x: 0, depth: 15, radius: 2, contents: water}\n"
+                 "  - {shape: circle, x: 20, depth: 15, radius: 2, contents: {water: {table-depth: 14}}}\n"
+                 "  - {shape: circle, x: 40, depth: 15, radius: 2, contents: empty}\n"),
+      k_file);
+  CHECK(sc.voids[0].contents == Contents::pressure);
+  CHECK(sc.voids[0].pressure == -5.0e3);
+  CHECK(sc.voids[1].contents == Contents::water);
+  CHECK_FALSE(sc.voids[1].water_table_depth);
+  CHECK(sc.voids[2].water_table_depth == 14);
+  CHECK(sc.voids[3].contents == Contents::empty);
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2, contents: {pressure: .nan}}\n"),
+               ".nan", "voids.0.contents.pressure", "finite");
+  expect_error(with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2, contents: {water: "
+                          "{table-depth: -1}}}\n"),
+               "-1", "voids.0.contents.water.table-depth", "must be 0 or more");
+  const Scenario dry = parse_scenario(
+      with_voids("  - {shape: circle, x: 0, depth: 15, radius: 2, contents: {water: {table-depth: 20}}}\n"),
+      k_file);
+  CHECK(any_warning(dry, "holds no water"));
+}
+
+TEST_CASE("surface loads") {
+  const std::string v = "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\n";
+  expect_error(k_head + v + "loads:\n  surface:\n    - {from: 5, to: 5, pressure: 1.0e3}\n", "5, p",
+               "loads.surface.0.to", "must be greater than 'from'");
+  expect_error(k_head + v + "loads:\n  surface:\n    - {from: -60, to: 5, pressure: 1.0e3}\n",
+               "-60", "loads.surface.0.from", "outside the domain");
+  expect_error(k_head + v + "loads:\n  surface:\n    - {from: 0, to: 60, pressure: 1.0e3}\n", "60",
+               "loads.surface.0.to", "outside the domain (x from -50 to 50 m)");
+  const Scenario two = parse_scenario(
+      k_head + v + "loads:\n  surface:\n    - {from: -50, to: 0, pressure: 1.0e3}\n"
+                   "    - {from: -10, to: 50, pressure: -2.0e3}\n",
+      k_file);
+  CHECK(two.loads.surface.size() == 2);
+  CHECK(two.loads.surface[1].pressure == -2.0e3);
+  expect_error(k_head + v + "loads:\n  surface:\n    - {from: 0, to: 6, pressure: lots}\n", "lots",
+               "loads.surface.0.pressure", "expected a number");
+}
+
+TEST_CASE("ground loss") {
+  const std::string v = "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\n";
+  expect_error(k_head + v + "loads:\n  ground-loss:\n    - {void: 1, percent: 1}\n", "1,",
+               "loads.ground-loss.0.void", "out of range: the voids are numbered 0 to 0");
+  expect_error(k_head + v + "loads:\n  ground-loss:\n    - {void: 0, percent: 0}\n", "0}",
+               "loads.ground-loss.0.percent", "between 0 and 100");
+  expect_error(k_head + v + "loads:\n  ground-loss:\n    - {void: 0, percent: 100}\n", "100",
+               "loads.ground-loss.0.percent", "between 0 and 100");
+  expect_error(k_head + v + "loads:\n  ground-loss:\n    - {void: 0, percent: 1}\n    - {void: 0, "
+                            "percent: 2}\n",
+               "0, percent: 2", "loads.ground-loss.1.void", "already has a ground loss");
+  const Scenario big = parse_scenario(
+      k_head + v + "loads:\n  ground-loss:\n    - {void: 0, percent: 8}\n", k_file);
+  CHECK(any_warning(big, "far above usual"));
+}
+
+TEST_CASE("axisymmetric model") {
+  const std::string head =
+      "format: 1\nmodel: axisymmetric\ndomain: {width: 40, depth: 50}\nlayers:\n"
+      "  - {material: chalk}\n";
+  const Scenario ok = parse_scenario(
+      head + "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\n"
+             "  - {shape: ellipse, x: 0, depth: 25, axes: [4, 2], angle: 90}\n"
+             "  - {shape: polygon, points: [[-3, 32], [3, 32], [2, 36], [-2, 36]]}\n"
+             "loads: {gravity: {}}\n",
+      k_file);
+  CHECK(ok.model == Model::axisymmetric);
+  CHECK(ok.loads.gravity);
+  CHECK_FALSE(ok.loads.k0);
+  expect_error(head + "voids:\n  - {shape: circle, x: 5, depth: 15, radius: 2}\n", "5, depth",
+               "voids.0.x", "centred on the axis (x: 0)");
+  expect_error(head + "voids:\n  - {shape: ellipse, x: 0, depth: 15, axes: [4, 2], angle: 20}\n",
+               "{shape", "voids.0", "multiple of 90 degrees");
+  expect_error(head + "voids:\n  - {shape: polygon, points: [[-3, 32], [3, 32], [2, 36], [-1, 36]]}\n",
+               "[2, 36]", "voids.0.points.2", "symmetric about the axis");
+  expect_error(head + "voids:\n  - {shape: circle, x: 0, depth: 25, radius: 21}\n", "0,",
+               "voids.0.x", "outer edge");
+  const std::string v = "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\n";
+  expect_error(head + v + "loads:\n  surface:\n    - {from: -1, to: 5, pressure: 1.0e3}\n", "-1",
+               "loads.surface.0.from", "axisymmetric model: 'from' is a radius");
+}
+
+TEST_CASE("model and format") {
+  expect_error(k_head + "model: 3d\n", "3d", "model", "model '3d' is not supported by this version");
+  expect_error(with_voids("  - {shape: sphere, x: 0, depth: 15, radius: 2}\n"), "sphere",
+               "voids.0.shape", "3d models");
+  const std::string two = "format: 2\ndomain: {width: 100, depth: 50}\nlayers:\n  - {material: chalk}\n";
+  expect_error(two, "2", "format", "format 2 is not supported; this version reads format 1");
+}
+
+TEST_CASE("analyses, sensors and mesh warnings") {
+  const std::string v = "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\n";
+  const Scenario sc = parse_scenario(
+      k_head + v +
+          "analyses:\n  static: {}\n  modal: {modes: 10}\n  ambient:\n    noise: high\n"
+          "sensors:\n  - radar-typical\n  - {kind: levelling, precision: 0.5e-3}\n"
+          "mesh: {size: 1, near-void: 2}\n",
+      k_file);
+  CHECK(sc.analyses.static_);
+  CHECK(sc.analyses.not_implemented == std::vector<std::string>{"modal", "ambient"});
+  CHECK(any_warning(sc, "the modal analysis is not implemented in this version"));
+  CHECK(any_warning(sc, "the ambient analysis is not implemented"));
+  CHECK(sc.has_sensors);
+  CHECK(any_warning(sc, "detectability is computed by a later version"));
+  CHECK(any_warning(sc, "near-void 2 m is coarser than the far-field size 1 m"));
+  CHECK(any_warning(sc, "coarse for this void"));
+  const Scenario modal_only = parse_scenario(k_head + v + "analyses: {modal: {}}\n", k_file);
+  CHECK_FALSE(modal_only.analyses.static_);
+  CHECK(any_warning(modal_only, "no analysis that this version runs"));
+  expect_error(k_head + v + "analyses: {modal: 10}\n", "10", "analyses.modal",
+               "expected a mapping");
+  expect_error(k_head + v + "analyses: {statics: {}}\n", "statics", "analyses.statics",
+               "did you mean 'static'?");
+}
