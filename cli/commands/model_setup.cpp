@@ -90,6 +90,20 @@ VoidExtent extent_of(const Void& v) {
   return e;
 }
 
+solver::FarField far_field_of(const Scenario& s) {
+  solver::FarField f;
+  double d_max = 0, x_sum = 0;
+  for (const Void& v : s.voids) {
+    const VoidExtent e = extent_of(v);
+    d_max = std::max(d_max, -e.z_bottom);
+    x_sum += e.cx;
+  }
+  if (s.voids.empty()) return f;
+  f.x_centre = s.model == Model::axisymmetric ? 0.0 : x_sum / static_cast<double>(s.voids.size());
+  f.offset = 5 * d_max;
+  return f;
+}
+
 mesh::Geometry2D geometry_of(const Scenario& s) {
   mesh::Geometry2D g;
   g.axisymmetric = s.model == Model::axisymmetric;

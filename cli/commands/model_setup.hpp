@@ -6,6 +6,7 @@
 #include "cli/scenario/scenario.hpp"
 #include "mesh/build/geometry.hpp"
 #include "mesh/core/mesh.hpp"
+#include "solver/analysis/signature.hpp"
 #include "solver/analysis/static.hpp"
 
 namespace voidsign::cli {
@@ -26,6 +27,10 @@ struct VoidExtent {
   double x_left = 0, x_right = 0;
 };
 VoidExtent extent_of(const Void& v);
+
+/// Far-field points for the relative settlement: 5 × the deepest void's depth either side of
+/// the voids' mean x (common practice: beyond the trough, whose half-width is about one depth).
+solver::FarField far_field_of(const Scenario& s);
 
 /// Caution printed in --help, the run summary and the README.
 inline constexpr const char* caution_text =

@@ -86,7 +86,8 @@ StaticRun run_static(const Scenario& s, ProgressLine* progress) {
     throw SolveError(e.what());
   }
   if (progress) progress->done();
-  run.profile = solver::surface_profile(*run.mesh, run.result);
+  run.profile = solver::surface_profile(*run.mesh, run.result, far_field_of(s));
+  run.far_field = far_field_of(s);
   run.anomaly = solver::summarize(run.profile, s.model == Model::axisymmetric);
   run.stability = solver::screen_stability(run.problem, run.result);
   run.warnings = model_warnings(s);
@@ -153,7 +154,7 @@ void write_static_outputs(const StaticRun& run, const Scenario& s, const std::fi
   t.comment(std::string("units: SI; x") + (axi ? " (radius r)" : "") +
             " m; u* m; tilt rad; strain_xx -; curvature 1/m. z up, settlement negative.");
   t.comment("d* = with voids minus without; tilt = d(duz)/dx; strain_xx = d(dux)/dx (extension positive); "
-            "duz_rel = duz minus its far-field value at the block's edge");
+            "duz_rel = duz minus its mean at the far-field points (x_centre +/- " + std::to_string(run.far_field.offset) + " m, or the block's edge if nearer)");
   for (const auto& r : run.profile)
     t.add_row({r.x, r.ux, r.uz, r.ux_ref, r.uz_ref, r.dux, r.duz, r.tilt, r.strain, r.duz_rel, r.curvature});
   t.write(dir / "static" / "surface.csv");
@@ -199,6 +200,7 @@ nlohmann::json static_summary(const StaticRun& run) {
                   {"strain_max", a.strain_max},
                   {"curvature_absmax", a.curvature_absmax},
                   {"far_field_uz", a.far_field_uz},
+                  {"far_field_offset", run.far_field.offset},
                   {"uz_rel_min", a.rel_uz_min},
                   {"trough_volume", a.trough_volume},
                   {"inflexion_offset", a.inflexion_offset}};

@@ -25,6 +25,7 @@ struct StaticRun {
   std::vector<solver::SurfaceRow> profile;
   solver::Anomaly anomaly;
   solver::Stability stability;
+  solver::FarField far_field;  ///< where duz_rel is measured from
   double mesh_seconds = 0;
   std::vector<std::string> warnings;
 };

@@ -221,8 +221,15 @@ std::vector<CatalogueEntry> build() {
        "vegetal soil 100-300 m/s, " + k_velocity_tables + "; representative 200"},
   };
   std::vector<CatalogueEntry> out;
-  out.reserve(rows.size());
+  out.reserve(rows.size() + 1);
   for (const auto& r : rows) out.push_back(make(r));
+  // The plain name, as scenarios usually say it, stands for the strong limestone.
+  CatalogueEntry plain = out.front();
+  plain.m.name = "limestone";
+  plain.m.source = "built-in catalogue entry 'limestone' (the values of 'limestone-strong'; "
+                   "status and source of each value: docs/materials.md)";
+  plain.description = "Limestone, generic: the values of limestone-strong";
+  out.insert(out.begin() + 2, plain);
   return out;
 }
 

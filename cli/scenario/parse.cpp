@@ -4,11 +4,9 @@
 #include <yaml-cpp/yaml.h>
 
 #include <algorithm>
-#include <array>
 #include <cmath>
 #include <cstdio>
 #include <fstream>
-#include <iterator>
 #include <limits>
 #include <numbers>
 #include <optional>
@@ -540,16 +538,11 @@ void check_polygon(const VoidInput& in) {
   const Field& pf = *in.points;
   std::vector<Pt> v;
   for (const auto& q : p) v.push_back({q[0], -q[1]});
-  double lx = 0, lz = 0;
-  {
-    Shape s;
-    s.kind = Void::Shape::polygon;
-    s.pts = v;
-    const Box b = bounding_box(s);
-    lx = b.x_max - b.x_min;
-    lz = b.z_max - b.z_min;
-  }
-  const double scale = std::max(lx, lz);
+  Shape outline;
+  outline.kind = Void::Shape::polygon;
+  outline.pts = v;
+  const Box box = bounding_box(outline);
+  const double scale = std::max(box.x_max - box.x_min, box.z_max - box.z_min);
   const double eps_len = 1e-9 * scale, eps_area = 1e-12 * scale * scale;
   auto edge = [&](std::size_t i) {
     return std::to_string(i) + "-" + std::to_string((i + 1) % n);
@@ -580,6 +573,16 @@ void check_polygon(const VoidInput& in) {
     return (o1 == 0 && on_seg(a, b, c)) || (o2 == 0 && on_seg(a, b, d)) ||
            (o3 == 0 && on_seg(c, d, a)) || (o4 == 0 && on_seg(c, d, b));
   };
+  {
+    // All points on the line through point 0 and the point farthest from it: no area.
+    auto from_first = [&](std::size_t i) { return std::hypot((v[i] - v[0]).x, (v[i] - v[0]).z); };
+    std::size_t far = 1;
+    for (std::size_t i = 2; i < n; ++i)
+      if (from_first(i) > from_first(far)) far = i;
+    bool in_line = true;
+    for (std::size_t i = 1; i < n; ++i) in_line = in_line && orient(v[0], v[far], v[i]) == 0;
+    if (in_line) pf.fail("the polygon has no area (its points are in a line)");
+  }
   for (std::size_t i = 0; i < n; ++i) {
     // Neighbouring edges share a point; they only go wrong by folding back on each other.
     const Pt a = v[i], b = v[(i + 1) % n], c = v[(i + 2) % n];
@@ -593,9 +596,6 @@ void check_polygon(const VoidInput& in) {
                 " intersect");
     }
   }
-  double area2 = 0;
-  for (std::size_t i = 0; i < n; ++i) area2 += cross(v[i], v[(i + 1) % n]);
-  if (std::abs(area2) <= 2 * eps_area) pf.fail("the polygon has no area (its points are in a line)");
 }
 
 VoidInput parse_void(const Field& f) {

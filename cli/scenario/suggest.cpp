@@ -6,6 +6,8 @@
 namespace voidsign::cli {
 namespace {
 
+using Strings = std::vector<std::string>;
+
 char fold(char c) {
   if (c >= 'A' && c <= 'Z') return static_cast<char>(c - 'A' + 'a');
   if (c == '_') return '-';
@@ -52,6 +54,25 @@ std::optional<std::string> nearest_word(std::string_view word,
 std::string suggestion_hint(std::string_view word, const std::vector<std::string>& candidates) {
   if (candidates.empty()) return {};
   if (auto near = nearest_word(word, candidates)) return "did you mean '" + *near + "'?";
+  // A word that is one part of hyphenated candidates ("clay" in "stiff-clay").
+  Strings parts;
+  for (const auto& c : candidates) {
+    std::size_t start = 0;
+    while (start <= c.size()) {
+      const std::size_t end = std::min(c.find('-', start), c.size());
+      if (end - start == word.size() && edit_distance(c.substr(start, end - start), word) == 0) {
+        parts.push_back(c);
+        break;
+      }
+      start = end + 1;
+    }
+  }
+  if (!parts.empty() && parts.size() <= 3) {
+    std::string s = "did you mean ";
+    for (std::size_t i = 0; i < parts.size(); ++i)
+      s += (i == 0 ? "'" : (i + 1 == parts.size() ? " or '" : ", '")) + parts[i] + "'";
+    return s + "?";
+  }
   std::string s = "expected one of: ";
   for (std::size_t i = 0; i < candidates.size(); ++i) s += (i ? ", " : "") + candidates[i];
   return s;

@@ -21,7 +21,9 @@ std::optional<std::string> nearest_word(std::string_view word,
                                         const std::vector<std::string>& candidates);
 
 /// Hint text for an unknown `word`, without parentheses: "did you mean 'radius'?" when a
-/// candidate is close, otherwise "expected one of: a, b, c"; "" when there are no candidates.
+/// candidate is close; "did you mean 'stiff-clay' or 'soft-clay'?" when `word` is one
+/// hyphen-separated part of up to three candidates; otherwise "expected one of: a, b, c";
+/// "" when there are no candidates.
 std::string suggestion_hint(std::string_view word, const std::vector<std::string>& candidates);
 
 }  // namespace voidsign::cli

@@ -1,6 +1,7 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
 #include "solver/analysis/signature.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <numbers>
 
@@ -41,7 +42,20 @@ std::vector<double> second_derivative(const std::vector<double>& x, const std::v
   return d;
 }
 
-std::vector<SurfaceRow> surface_profile(const mesh::Mesh& m, const StaticResult& r) {
+namespace {
+
+// Linear interpolation of y(x) at xq, clamped to the ends.
+double interpolate(const std::vector<double>& x, const std::vector<double>& y, double xq) {
+  if (xq <= x.front()) return y.front();
+  if (xq >= x.back()) return y.back();
+  const auto i = static_cast<std::size_t>(std::upper_bound(x.begin(), x.end(), xq) - x.begin());
+  const double t = (xq - x[i - 1]) / (x[i] - x[i - 1]);
+  return y[i - 1] + t * (y[i] - y[i - 1]);
+}
+
+}  // namespace
+
+std::vector<SurfaceRow> surface_profile(const mesh::Mesh& m, const StaticResult& r, const FarField& ff) {
   std::vector<SurfaceRow> rows;
   rows.reserve(m.surface_nodes.size());
   for (int n : m.surface_nodes) {
@@ -63,9 +77,14 @@ std::vector<SurfaceRow> surface_profile(const mesh::Mesh& m, const StaticResult&
     duz.push_back(row.duz);
   }
   const auto tilt = derivative(x, duz), strain = derivative(x, dux), curv = second_derivative(x, duz);
-  // Far field: the block's outer edge(s) — both ends in plane strain, the outer radius otherwise.
   const bool axis_at_left = std::abs(x.front()) < 1e-9 * (std::abs(x.back()) + 1);
-  const double far = axis_at_left ? duz.back() : 0.5 * (duz.front() + duz.back());
+  double far = 0;
+  if (axis_at_left)
+    far = ff.offset > 0 ? interpolate(x, duz, ff.offset) : duz.back();
+  else if (ff.offset > 0)
+    far = 0.5 * (interpolate(x, duz, ff.x_centre - ff.offset) + interpolate(x, duz, ff.x_centre + ff.offset));
+  else
+    far = 0.5 * (duz.front() + duz.back());
   for (std::size_t i = 0; i < rows.size(); ++i) {
     rows[i].tilt = tilt[i];
     rows[i].strain = strain[i];

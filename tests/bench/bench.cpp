@@ -297,8 +297,15 @@ int main(int argc, char** argv) {
   std::printf("voidsign bench: plane strain, quadratic triangles, both models (with and without voids) per run\n");
   std::printf("machine: %ld cores online, %.1f GiB memory\n\n", sysconf(_SC_NPROCESSORS_ONLN), phys / gib);
 
+  // Rows are printed as each size finishes, so that a long run shows its progress.
+  const char* head = "%-5s %8s %8s %8s %7s %8s %7s %7s %7s %7s %7s %7s %7s %8s %6s\n";
+  std::printf(head, "size", "DOF", "nodes", "elements", "mesh", "assemble", "analyse", "factor", "solve", "other", "write",
+              "total", "CPU", "peak RSS", "others");
+  std::printf(head, "", "[-]", "[-]", "[-]", "[s]", "[s]", "[s]", "[s]", "[s]", "[s]", "[s]", "[s]", "[s]", "[GiB]",
+              "[core]");
+  std::fflush(stdout);
   std::vector<Row> rows;
-  int failures = 0;
+  int failures = 0, threads = 0;
   for (const Density* d : chosen) {
     std::fprintf(stderr, "bench: running %s (mesh.size %.2f m) ...\n", d->label, d->size);
     Row r{d, {}, 0, 0, 0};
@@ -309,35 +316,36 @@ int main(int argc, char** argv) {
     r.others = std::max(0.0, (machine_busy_seconds() - busy0 - r.cpu) / wall);
     if (!r.f.ok) {
       std::fprintf(stderr, "bench: %s failed: %s\n", d->label, r.f.error);
+      std::printf("%-5s failed: %s\n", d->label, r.f.error);
       ++failures;
       continue;
     }
-    rows.push_back(r);
-  }
-  if (rows.empty()) return 1;
-
-  const char* head = "%-5s %8s %8s %8s %7s %8s %7s %7s %7s %7s %7s %7s %7s %8s %6s\n";
-  std::printf(head, "size", "DOF", "nodes", "elements", "mesh", "assemble", "analyse", "factor", "solve", "other", "write",
-              "total", "CPU", "peak RSS", "others");
-  std::printf(head, "", "[-]", "[-]", "[-]", "[s]", "[s]", "[s]", "[s]", "[s]", "[s]", "[s]", "[s]", "[s]", "[GiB]",
-              "[core]");
-  for (const Row& r : rows) {
     const Figures& f = r.f;
     std::printf("%-5s %8.0f %8.0f %8.0f %7.2f %8.2f %7.2f %7.2f %7.2f %7.2f %7.2f %7.2f %7.2f %8.2f %6.2f\n",
                 r.density->label, f.dofs, f.nodes, f.cells, f.mesh, f.assemble, f.analyse, f.factorize, f.solve, f.other,
                 f.write, f.total, r.cpu, r.peak_rss / gib, r.others);
+    std::fflush(stdout);
+    threads = f.threads;
+    rows.push_back(r);
   }
+  if (rows.empty()) return 1;
   std::printf("factor, solve: both models. other: parsing, set-up, signature, stability screening. total: wall, with\n"
               "write. CPU: user + system of the run (%d OpenMP threads). others: cores busy with other processes\n"
               "meanwhile (above ~0.2 the times are inflated; rerun on a quiet machine).\n",
-              rows.front().f.threads);
+              threads);
+  std::printf("nonzeros of the Cholesky factor L [millions]:");
+  for (const Row& r : rows) std::printf("  %s %.1f", r.density->label, r.f.factor_nonzeros / 1e6);
+  std::printf("\n");
 
   if (rows.size() >= 2) {
     std::printf("\ngrowth of total time with DOF, exponent p in t ~ DOF^p:\n");
     for (std::size_t i = 1; i < rows.size(); ++i) {
       const Figures &a = rows[i - 1].f, &b = rows[i].f;
       const double p = std::log(b.total / a.total) / std::log(b.dofs / a.dofs);
-      std::printf("  %-5s -> %-5s p = %.2f\n", rows[i - 1].density->label, rows[i].density->label, p);
+      const double pf = std::log(b.factorize / a.factorize) / std::log(b.dofs / a.dofs);
+      const double pl = std::log(b.factor_nonzeros / a.factor_nonzeros) / std::log(b.dofs / a.dofs);
+      std::printf("  %-5s -> %-5s p = %.2f   (factorisation time DOF^%.2f, factor nonzeros DOF^%.2f)\n",
+                  rows[i - 1].density->label, rows[i].density->label, p, pf, pl);
     }
     // Least-squares slope of ln t against ln DOF over all sizes.
     double sx = 0, sy = 0, sxx = 0, sxy = 0;

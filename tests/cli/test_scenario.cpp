@@ -90,6 +90,10 @@ TEST_CASE("edit distance and suggestions") {
   CHECK_FALSE(nearest_word("colour", keys).has_value());
   CHECK(suggestion_hint("raduis", keys) == "did you mean 'radius'?");
   CHECK(suggestion_hint("colour", keys) == "expected one of: shape, x, depth, radius, contents");
+  const std::vector<std::string> names = {"chalk", "stiff-clay", "soft-clay", "dense-sand"};
+  CHECK(suggestion_hint("clay", names) == "did you mean 'stiff-clay' or 'soft-clay'?");
+  CHECK(suggestion_hint("sand", names) == "did you mean 'dense-sand'?");
+  CHECK(suggestion_hint("basalt", names) == "expected one of: chalk, stiff-clay, soft-clay, dense-sand");
 }
 
 TEST_CASE("sha256 test vectors") {
@@ -125,6 +129,9 @@ TEST_CASE("material catalogue") {
     CHECK(find_material(e.m.name) == &e);
   }
   CHECK(find_material("no-such-rock") == nullptr);
+  // The plain name used in the format's own example is the strong limestone.
+  REQUIRE(find_material("limestone") != nullptr);
+  CHECK(find_material("limestone")->m.young == find_material("limestone-strong")->m.young);
   // Rocks have a strength; uncemented soils have none (0), said so in the note.
   CHECK(find_material("granite")->m.ucs > 0);
   CHECK(find_material("dense-sand")->m.ucs == 0);
@@ -732,4 +739,94 @@ TEST_CASE("analyses, sensors and mesh warnings") {
                "expected a mapping");
   expect_error(k_head + v + "analyses: {statics: {}}\n", "statics", "analyses.statics",
                "did you mean 'static'?");
+}
+
+TEST_CASE("the example in docs/scenario-format.md parses") {
+  std::ifstream in(std::string(VOIDSIGN_SOURCE_DIR) + "/docs/scenario-format.md");
+  REQUIRE(in);
+  std::string line, yaml;
+  bool inside = false;
+  while (std::getline(in, line)) {
+    if (!inside && line == "```yaml") {
+      inside = true;
+    } else if (inside && line == "```") {
+      break;
+    } else if (inside) {
+      yaml += line + "\n";
+    }
+  }
+  REQUIRE_FALSE(yaml.empty());
+  const Scenario sc = parse_scenario(yaml, "/tmp/voidsign-test/orchard.yaml");
+  INFO((sc.warnings.empty() ? std::string() : sc.warnings[0]));
+  CHECK(sc.warnings.empty());
+  CHECK(sc.voids.size() == 4);
+  CHECK(sc.materials.count("limestone") == 1);
+}
+
+TEST_CASE("the format's reference example parses, skipping what this version does not run") {
+  const std::string yaml = R"(format: 1
+title: Chalk gallery under a farm track
+model: plane-strain
+domain:
+  width: 300
+  depth: 120
+  length: 300
+  boundaries: {sides: roller, bottom: fixed}
+materials:
+  chalk-soft:
+    density: 1800
+    young: 4.0e9
+    poisson: 0.28
+    damping: 0.02
+    ucs: 5.0e6
+    tensile: 0.3e6
+layers:
+  - {material: loess, thickness: 3}
+  - {material: chalk-soft, thickness: 40}
+  - {material: limestone}
+voids:
+  - {shape: circle, x: 0, depth: 15, radius: 2.5}
+  - {shape: rectangle, x: 30, depth: 20, width: 6, height: 2.5}
+  - {shape: ellipse, x: -40, depth: 25, axes: [4, 1.5], angle: 20}
+  - {shape: polygon, points: [[-5, 30], [5, 30], [5, 34], [-5, 34]]}
+loads:
+  gravity: {k0: auto}
+  surface:
+    - {from: -5, to: 5, pressure: 50.0e3}
+  ground-loss:
+    - {void: 0, percent: 1.0}
+analyses:
+  static: {}
+  modal: {modes: 10}
+  harmonic:
+    frequencies: {min: 0.1, max: 20, count: 60, spacing: log}
+    excitation: {wave: S, incidence: 0, amplitude: 1.0e-6}
+  transient:
+    duration: 1.0
+    source: {x: -50, depth: 0, peak-frequency: 8, force: 1.0e6}
+  ambient:
+    noise: high
+    band: [0.1, 20]
+mesh:
+  order: 2
+  size: 5
+  near-void: 0.25
+  surface: 1.0
+sensors:
+  - radar-typical
+  - {kind: radar-los, precision: 1.0e-3, pixel: 20, incidence: 39, heading: -12, window: 3}
+  - {kind: levelling, precision: 0.5e-3, spacing: 10}
+output:
+  dir: results/gallery
+)";
+  const Scenario sc = parse_scenario(yaml, "/tmp/voidsign-test/gallery.yaml");
+  CHECK(sc.analyses.static_);
+  CHECK(sc.analyses.not_implemented ==
+        std::vector<std::string>{"modal", "harmonic", "transient", "ambient"});
+  CHECK(sc.has_sensors);
+  CHECK(sc.domain.length == 300);
+  CHECK(any_warning(sc, "key 'domain.length'"));
+  CHECK(sc.mesh.near_void == 0.25);
+  CHECK(sc.output_dir == std::filesystem::path("/tmp/voidsign-test/results/gallery"));
+  CHECK(sc.warnings.size() == 6);  // length, four analyses, sensors
 }

@@ -1,0 +1,163 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+// The program as a user runs it: exit codes, outputs, refusal to overwrite, nothing half-written.
+#include <doctest/doctest.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <nlohmann/json.hpp>
+#include <sstream>
+#include <string>
+
+namespace fs = std::filesystem;
+
+namespace {
+
+struct Cmd {
+  int rc;
+  std::string out;
+};
+
+Cmd run(const std::string& args) {
+  const std::string cmd = std::string(VOIDSIGN_BINARY) + " " + args + " 2>&1";
+  FILE* p = popen(cmd.c_str(), "r");
+  std::string out;
+  char buf[4096];
+  while (std::fgets(buf, sizeof buf, p)) out += buf;
+  const int status = pclose(p);
+  return {WIFEXITED(status) ? WEXITSTATUS(status) : -1, out};
+}
+
+fs::path temp_dir(const std::string& name) {
+  fs::path d = fs::temp_directory_path() / ("voidsign-test-" + name + "-" + std::to_string(getpid()));
+  fs::remove_all(d);
+  fs::create_directories(d);
+  return d;
+}
+
+const char* small_scenario = R"(format: 1
+title: test gallery
+model: plane-strain
+domain: {width: 120, depth: 40}
+layers:
+  - {material: loess, thickness: 2}
+  - {material: chalk}
+voids:
+  - {shape: circle, x: 0, depth: 6, radius: 1.5}
+loads:
+  gravity: {k0: auto}
+analyses:
+  static: {}
+mesh: {order: 2, size: 6, near-void: 0.3, surface: 1}
+)";
+
+fs::path write_file(const fs::path& dir, const std::string& name, const std::string& text) {
+  std::ofstream(dir / name) << text;
+  return dir / name;
+}
+
+std::string read(const fs::path& p) {
+  std::ifstream f(p);
+  std::stringstream ss;
+  ss << f.rdbuf();
+  return ss.str();
+}
+
+}  // namespace
+
+TEST_CASE("run writes every contracted file with units, and refuses to overwrite without --force") {
+  const fs::path d = temp_dir("run");
+  const fs::path scn = write_file(d, "s.yaml", small_scenario);
+  const fs::path out = d / "out";
+  Cmd c = run("run " + scn.string() + " --out " + out.string());
+  INFO(c.out);
+  REQUIRE(c.rc == 0);
+  for (const char* f : {"summary.json", "mesh.vtu", "static/surface.csv", "static/field.vtu", "static/field_ref.vtu"})
+    CHECK_MESSAGE(fs::exists(out / f), f);
+  const auto j = nlohmann::json::parse(read(out / "summary.json"));
+  CHECK(j["format"] == 1);
+  CHECK(j["model"] == "plane-strain");
+  CHECK(j["static"]["residual"].get<double>() < 1e-8);
+  CHECK(j["static"]["anomaly"]["uz_min"].get<double>() < 0);
+  CHECK(j["mesh"]["dofs"].get<int>() == 2 * j["mesh"]["nodes"].get<int>());
+  CHECK(j["input_sha256"].get<std::string>().size() == 64);
+  const std::string csv = read(out / "static/surface.csv");
+  CHECK(csv.rfind("# ", 0) == 0);
+  CHECK(csv.find("units") != std::string::npos);
+  CHECK(csv.find("x,ux,uz,ux_ref,uz_ref,dux,duz,tilt,strain_xx") != std::string::npos);
+  CHECK(c.out.find("Caution") != std::string::npos);
+
+  // Second run into the same folder: refused (bad input), the old results untouched.
+  const auto before = fs::last_write_time(out / "summary.json");
+  c = run("run " + scn.string() + " --out " + out.string());
+  CHECK(c.rc == 2);
+  CHECK(c.out.find("--force") != std::string::npos);
+  CHECK(fs::last_write_time(out / "summary.json") == before);
+  c = run("run " + scn.string() + " --out " + out.string() + " --force");
+  CHECK(c.rc == 0);
+  // No staging folders or temporary files left behind.
+  for (const auto& e : fs::recursive_directory_iterator(d)) CHECK(e.path().string().find(".partial-") == std::string::npos);
+  for (const auto& e : fs::recursive_directory_iterator(out)) CHECK(e.path().string().find(".tmp-") == std::string::npos);
+  fs::remove_all(d);
+}
+
+TEST_CASE("exit codes: bad scenario 2, bad command line 2, missing file 2") {
+  const fs::path d = temp_dir("codes");
+  std::string bad = small_scenario;
+  bad.replace(bad.find("radius"), 6, "raduis");
+  const fs::path scn = write_file(d, "bad.yaml", bad);
+  Cmd c = run("run " + scn.string() + " --out " + (d / "o").string());
+  CHECK(c.rc == 2);
+  CHECK(c.out.find("bad.yaml:9:") != std::string::npos);
+  CHECK(c.out.find("radius") != std::string::npos);
+  CHECK(!fs::exists(d / "o"));
+  CHECK(run("run").rc == 2);
+  CHECK(run("frobnicate").rc == 2);
+  CHECK(run("run " + (d / "nope.yaml").string()).rc == 2);
+  CHECK(run("check " + scn.string()).rc == 2);
+  fs::remove_all(d);
+}
+
+TEST_CASE("check prints mesh size and estimates without solving; materials lists the catalogue") {
+  const fs::path d = temp_dir("check");
+  const fs::path scn = write_file(d, "s.yaml", small_scenario);
+  Cmd c = run("check " + scn.string());
+  INFO(c.out);
+  CHECK(c.rc == 0);
+  CHECK(c.out.find("nodes") != std::string::npos);
+  CHECK(c.out.find("unknowns") != std::string::npos);
+  CHECK(c.out.find("GB") != std::string::npos);
+  CHECK(!fs::exists(d / "results"));
+  c = run("materials");
+  CHECK(c.rc == 0);
+  CHECK(c.out.find("limestone") != std::string::npos);
+  c = run("run --help");
+  CHECK(c.out.find("not a design") != std::string::npos);
+  fs::remove_all(d);
+}
+
+TEST_CASE("a mesh too large for the machine is refused before allocating") {
+  const fs::path d = temp_dir("huge");
+  std::string s = small_scenario;
+  s.replace(s.find("mesh: {order: 2, size: 6, near-void: 0.3, surface: 1}"), 53,
+            "mesh: {order: 2, size: 0.01, near-void: 0.01, surface: 0.01}");
+  const fs::path scn = write_file(d, "huge.yaml", s);
+  Cmd c = run("run " + scn.string() + " --out " + (d / "o").string());
+  INFO(c.out);
+  CHECK(c.rc == 2);
+  CHECK(c.out.find("mesh") != std::string::npos);
+  CHECK(!fs::exists(d / "o"));
+  fs::remove_all(d);
+}
+
+TEST_CASE("the demo scenarios run") {
+  for (const char* name : {"chalk-gallery.yaml", "karst-cave.yaml"}) {
+    const fs::path d = temp_dir("demo");
+    Cmd c = run(std::string("run ") + VOIDSIGN_SOURCE_DIR + "/scenarios/" + name + " --out " + (d / "o").string());
+    INFO(c.out);
+    CHECK(c.rc == 0);
+    fs::remove_all(d);
+  }
+}
