@@ -49,9 +49,9 @@ struct Density {
 // printed with the results.
 constexpr Density densities[] = {
     {"150k", 150e3, 3.00, 1.50, 0.55},
-    {"500k", 500e3, 1.64, 0.82, 0.41},
-    {"1M", 1e6, 1.16, 0.58, 0.29},
-    {"2M", 2e6, 0.82, 0.41, 0.20},
+    {"500k", 500e3, 1.62, 0.81, 0.40},
+    {"1M", 1e6, 1.14, 0.57, 0.28},
+    {"2M", 2e6, 0.80, 0.40, 0.20},
 };
 
 /// The benchmark scenario: a layered block 600 m × 200 m (loess over chalk over limestone) with

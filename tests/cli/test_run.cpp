@@ -120,7 +120,7 @@ TEST_CASE("exit codes: bad scenario 2, bad command line 2, missing file 2") {
   fs::remove_all(d);
 }
 
-TEST_CASE("check prints mesh size and estimates without solving; materials lists the catalogue") {
+TEST_CASE("check prints mesh size and estimates without solving, and materials lists the catalogue") {
   const fs::path d = temp_dir("check");
   const fs::path scn = write_file(d, "s.yaml", small_scenario);
   Cmd c = run("check " + scn.string());

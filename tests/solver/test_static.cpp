@@ -105,7 +105,7 @@ TEST_CASE("a void region given the host material leaves no anomaly (same mesh, n
   CHECK(peak <= 1e-12 * scale);
 }
 
-TEST_CASE("every solve reports a small residual; the model without voids stays at rest under its own in-situ stress") {
+TEST_CASE("every solve reports a small residual, and the model without voids stays at rest under its own in-situ stress") {
   const mesh::Mesh m = gallery_mesh(200, 60, 2);
   const auto p = gravity_problem(m, 0.8);
   const auto r = solver::solve_static(p);
