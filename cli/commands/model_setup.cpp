@@ -71,22 +71,15 @@ VoidExtent extent_of(const Void& v) {
   VoidExtent e;
   e.z_top = e.x_right = -1e300;
   e.z_bottom = e.x_left = 1e300;
-  double sx = 0, sz = 0;
   for (const auto& p : pts) {
     e.x_left = std::min(e.x_left, p[0]);
     e.x_right = std::max(e.x_right, p[0]);
     e.z_bottom = std::min(e.z_bottom, p[1]);
     e.z_top = std::max(e.z_top, p[1]);
-    sx += p[0];
-    sz += p[1];
   }
-  if (v.shape == Void::Shape::polygon) {
-    e.cx = sx / static_cast<double>(pts.size());
-    e.cz = sz / static_cast<double>(pts.size());
-  } else {
-    e.cx = v.x;
-    e.cz = -v.depth;
-  }
+  // The reader sets a polygon's x and depth to its area centroid.
+  e.cx = v.x;
+  e.cz = -v.depth;
   return e;
 }
 

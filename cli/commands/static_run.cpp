@@ -130,7 +130,7 @@ std::vector<std::string> model_warnings(const Scenario& s) {
   }
   if (s.model == Model::plane_strain && !s.voids.empty()) {
     const bool net_force = s.loads.gravity || !s.loads.surface.empty() ||
-                           std::any_of(s.voids.begin(), s.voids.end(), [](const Void& v) { return v.contents != Contents::empty; });
+                           std::any_of(s.voids.begin(), s.voids.end(), [](const Void& v) { return v.contents == Contents::water; });
     // Block-size study in docs/theory.md: tilt and strain settle once the block is ≥ 10 void
     // depths wide and ≥ 3 deep; absolute Δu_z never does in plane strain (Flamant).
     if (s.domain.width < 10 * d_max || s.domain.depth < 3 * d_max)

@@ -357,13 +357,17 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress) {
   Vector rhs = constrained_rhs(k_void0.size() ? k_void0 : k_void, k_void, fixed_void, f_void, g);
   Vector u = chol.solve(rhs);
   res.voided.wall_translation.assign(static_cast<std::size_t>(m.n_voids), {0.0, 0.0});
-  if (!losses.empty()) {
+  const bool any_free = std::any_of(losses.begin(), losses.end(), [&](const Loss& l) {
+    return p.voids[static_cast<std::size_t>(l.void_id)].wall_free;
+  });
+  if (any_free) {
     // Superpose unit wall translations so that each wall carries no net force (the void is
     // free to move, as in Verruijt & Booker 1996).
     const bool axi = p.kinematics == Kinematics::axisymmetric;
     std::vector<std::pair<std::size_t, int>> modes;  // (loss index, direction)
     for (std::size_t i = 0; i < losses.size(); ++i)
-      for (int d = axi ? 1 : 0; d < 2; ++d) modes.push_back({i, d});
+      if (p.voids[static_cast<std::size_t>(losses[i].void_id)].wall_free)
+        for (int d = axi ? 1 : 0; d < 2; ++d) modes.push_back({i, d});
     auto net_force = [&](const Vector& uu, const Vector& ff) {
       const Vector r = k_void0.selfadjointView<Eigen::Lower>() * uu - ff;
       Vector out(static_cast<Eigen::Index>(modes.size()));

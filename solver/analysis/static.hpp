@@ -12,14 +12,10 @@
 
 #include "mesh/core/mesh.hpp"
 #include "solver/assembly/system.hpp"
+#include "solver/fe/constants.hpp"
 #include "solver/fe/element.hpp"
 
 namespace voidsign::solver {
-
-/// Standard gravity, m/s² (3rd CGPM, 1901).
-inline constexpr double standard_gravity = 9.80665;
-/// Density of fresh water, kg/m³ (common practice).
-inline constexpr double water_density = 1000.0;
 
 /// Per-layer properties used by the static analysis.
 struct LayerProps {
@@ -35,6 +31,9 @@ struct VoidLoad {
   double pressure = 0;        ///< Pa, Contents::pressure (positive pushes the wall outward)
   double water_table_z = 0;   ///< z of the void's own water surface, Contents::water
   double volume_loss = 0;     ///< ground loss as a fraction (0.01 = 1 %); 0 = none
+  /// Ground loss: the wall may translate so that it carries no net force (true, the physical
+  /// case), or its centre is held (false: only for demonstrating the difference).
+  bool wall_free = true;
   double cx = 0, cz = 0;      ///< centre the wall contracts about [m]
 };
 

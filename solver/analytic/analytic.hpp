@@ -15,11 +15,11 @@
 /// Each group cites the original publication and how far the formula has been checked.
 #include <span>
 
+#include "solver/fe/constants.hpp"
+
 namespace voidsign::solver::analytic {
 
-/// Standard acceleration of gravity [m/s^2], as defined by the 3rd CGPM (1901). Used as the
-/// default wherever a function needs g.
-inline constexpr double standard_gravity = 9.80665;
+using solver::standard_gravity;
 
 /// Shear modulus G = E / (2 (1 + nu)) [Pa] from Young's modulus [Pa] and Poisson's ratio.
 double shear_modulus(double young_pa, double poisson);
