@@ -4,6 +4,7 @@
 #include <algorithm>
 #include <cmath>
 #include <numbers>
+#include <stdexcept>
 
 namespace voidsign::cli {
 
@@ -33,6 +34,10 @@ mesh::VoidOutline outline_of(const Void& v) {
       o.kind = mesh::VoidOutline::Kind::polygon;
       for (const auto& p : v.points) o.points.push_back({p[0], -p[1]});
       break;
+    case Void::Shape::sphere:
+    case Void::Shape::box:
+    case Void::Shape::tunnel:
+      throw std::logic_error("a 3D void in a 2D model (the reader should have refused it)");
   }
   return o;
 }
@@ -60,13 +65,48 @@ std::vector<std::array<double, 2>> outline_points(const Void& v) {
     case Void::Shape::polygon:
       for (const auto& p : v.points) pts.push_back({p[0], -p[1]});
       break;
+    case Void::Shape::sphere:
+    case Void::Shape::box:
+    case Void::Shape::tunnel:
+      break;  // 3D bodies: see extent_3d
   }
   return pts;
 }
 
 }  // namespace
 
+// Extent of a 3D body in x and z (y is not needed by the callers).
+VoidExtent extent_3d(const Void& v) {
+  VoidExtent e;
+  e.cx = v.x;
+  e.cz = -v.depth;
+  switch (v.shape) {
+    case Void::Shape::sphere:
+      e.x_left = v.x - v.radius; e.x_right = v.x + v.radius;
+      e.z_top = -v.depth + v.radius; e.z_bottom = -v.depth - v.radius;
+      break;
+    case Void::Shape::box: {
+      const double c = std::abs(std::cos(v.yaw * std::numbers::pi / 180)), sn = std::abs(std::sin(v.yaw * std::numbers::pi / 180));
+      const double hx = 0.5 * (c * v.size[0] + sn * v.size[1]);
+      e.x_left = v.x - hx; e.x_right = v.x + hx;
+      e.z_top = -v.depth + v.size[2] / 2; e.z_bottom = -v.depth - v.size[2] / 2;
+      break;
+    }
+    default: {  // tunnel: the axis ends, widened by the radius
+      e.x_left = std::min(v.from[0], v.to[0]) - v.radius; e.x_right = std::max(v.from[0], v.to[0]) + v.radius;
+      e.z_top = -std::min(v.from[2], v.to[2]) + v.radius; e.z_bottom = -std::max(v.from[2], v.to[2]) - v.radius;
+      break;
+    }
+  }
+  return e;
+}
+
+bool is_3d(const Void& v) {
+  return v.shape == Void::Shape::sphere || v.shape == Void::Shape::box || v.shape == Void::Shape::tunnel;
+}
+
 VoidExtent extent_of(const Void& v) {
+  if (is_3d(v)) return extent_3d(v);
   const auto pts = outline_points(v);
   VoidExtent e;
   e.z_top = e.x_right = -1e300;
@@ -111,6 +151,40 @@ mesh::Geometry2D geometry_of(const Scenario& s) {
   return g;
 }
 
+mesh::Geometry3D geometry3d_of(const Scenario& s) {
+  mesh::Geometry3D g;
+  g.width = s.domain.width;
+  g.length = s.domain.length;
+  g.depth = s.domain.depth;
+  for (const Layer& l : s.layers) g.layer_thickness.push_back(l.thickness > 0 ? l.thickness : s.domain.depth);
+  for (const Void& v : s.voids) {
+    mesh::VoidSolid b;
+    b.cx = v.x;
+    b.cy = v.y;
+    b.cz = -v.depth;
+    b.radius = v.radius;
+    b.size = v.size;
+    b.yaw_deg = v.yaw;
+    b.from = {v.from[0], v.from[1], -v.from[2]};
+    b.to = {v.to[0], v.to[1], -v.to[2]};
+    b.kind = v.shape == Void::Shape::sphere ? mesh::VoidSolid::Kind::sphere
+             : v.shape == Void::Shape::box  ? mesh::VoidSolid::Kind::box
+                                            : mesh::VoidSolid::Kind::tunnel;
+    g.voids.push_back(b);
+  }
+  g.sizing.order = s.mesh.order;
+  g.sizing.far = s.mesh.size;
+  g.sizing.near_void = s.mesh.near_void;
+  g.sizing.surface = s.mesh.surface;
+  return g;
+}
+
+double y_centre_of(const Scenario& s) {
+  double sum = 0;
+  for (const Void& v : s.voids) sum += v.y;
+  return s.voids.empty() ? 0.0 : sum / static_cast<double>(s.voids.size());
+}
+
 std::vector<double> layer_k0(const Scenario& s) {
   std::vector<double> k;
   for (const Layer& l : s.layers) {
@@ -123,7 +197,9 @@ std::vector<double> layer_k0(const Scenario& s) {
 solver::StaticProblem static_problem_of(const Scenario& s, const mesh::Mesh& m) {
   solver::StaticProblem p;
   p.mesh = &m;
-  p.kinematics = s.model == Model::axisymmetric ? solver::Kinematics::axisymmetric : solver::Kinematics::plane_strain;
+  p.kinematics = s.model == Model::axisymmetric ? solver::Kinematics::axisymmetric
+                 : s.model == Model::three_d    ? solver::Kinematics::solid
+                                                : solver::Kinematics::plane_strain;
   const auto k0 = layer_k0(s);
   std::vector<double> bottoms, density;
   double z = 0;
@@ -149,7 +225,13 @@ solver::StaticProblem static_problem_of(const Scenario& s, const mesh::Mesh& m) 
     solver::VoidLoad vl;
     const VoidExtent e = extent_of(v);
     vl.cx = e.cx;
+    vl.cy = v.y;
     vl.cz = e.cz;
+    if (v.shape == Void::Shape::tunnel) {
+      const std::array<double, 3> d{v.to[0] - v.from[0], v.to[1] - v.from[1], -(v.to[2] - v.from[2])};
+      const double len = std::sqrt(d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
+      vl.axis = {d[0] / len, d[1] / len, d[2] / len};
+    }
     switch (v.contents) {
       case Contents::empty: vl.contents = solver::VoidLoad::Contents::empty; break;
       case Contents::pressure:
@@ -164,7 +246,8 @@ solver::StaticProblem static_problem_of(const Scenario& s, const mesh::Mesh& m) 
     p.voids.push_back(vl);
   }
   for (const GroundLoss& gl : s.loads.ground_loss) p.voids[static_cast<std::size_t>(gl.void_index)].volume_loss = gl.percent / 100;
-  for (const SurfaceLoad& sl : s.loads.surface) p.surface.push_back({sl.from, sl.to, sl.pressure});
+  for (const SurfaceLoad& sl : s.loads.surface)
+    p.surface.push_back({.from = sl.from, .to = sl.to, .y_from = sl.y_from, .y_to = sl.y_to, .pressure = sl.pressure});
   p.boundaries.sides = s.domain.sides == Boundary::fixed ? solver::Support::fixed : solver::Support::roller;
   p.boundaries.bottom = s.domain.bottom == Boundary::fixed ? solver::Support::fixed : solver::Support::roller;
   return p;

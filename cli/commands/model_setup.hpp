@@ -5,6 +5,7 @@
 /// conventions (z up, fractions, per-layer properties).
 #include "cli/scenario/scenario.hpp"
 #include "mesh/build/geometry.hpp"
+#include "mesh/build/geometry3d.hpp"
 #include "mesh/core/mesh.hpp"
 #include "solver/analysis/signature.hpp"
 #include "solver/analysis/static.hpp"
@@ -13,6 +14,10 @@ namespace voidsign::cli {
 
 /// Mesh sizes actually used (scenario values, or the defaults the parser filled in).
 mesh::Geometry2D geometry_of(const Scenario& s);
+/// The same for `model: 3d`.
+mesh::Geometry3D geometry3d_of(const Scenario& s);
+/// Mean y of the voids (3D far-field ring centre), m.
+double y_centre_of(const Scenario& s);
 
 /// The static problem on mesh `m` (which must have been built from geometry_of(s)).
 solver::StaticProblem static_problem_of(const Scenario& s, const mesh::Mesh& m);

@@ -48,22 +48,33 @@ void check_budget(const Scenario& s, const RunEstimate& e) {
   }
 }
 
+std::string where(const StaticRun& run, double x, double y) {
+  char buf[64];
+  if (run.mesh->dim() == 3)
+    std::snprintf(buf, sizeof buf, "at (x, y) = (%.2f, %.2f) m", x, y);
+  else
+    std::snprintf(buf, sizeof buf, "at x = %.2f m", x);
+  return buf;
+}
+
 void print_peaks(const StaticRun& run, const fs::path& dir) {
   const solver::Anomaly& a = run.anomaly;
+  const bool three_d = run.mesh->dim() == 3;
   std::printf("\nStatic signature (with voids minus without), ground surface:\n");
-  std::printf("  %-34s %12.4g m    at x = %.2f m\n", "largest settlement", a.uz_min, a.x_uz_min);
+  std::printf("  %-34s %12.4g m    %s\n", "largest settlement", a.uz_min, where(run, a.x_uz_min, a.y_uz_min).c_str());
   std::printf("  %-34s %12.4g m\n", "settlement relative to far field", a.rel_uz_min);
-  std::printf("  %-34s %12.4g m    at x = %.2f m\n", "largest uplift", a.uz_max, a.x_uz_max);
-  std::printf("  %-34s %12.4g m    at x = %.2f m\n", "largest horizontal displacement", a.ux_absmax, a.x_ux_absmax);
-  std::printf("  %-34s %12.4g rad  at x = %.2f m\n", "largest tilt", a.tilt_absmax, a.x_tilt_absmax);
-  std::printf("  %-34s %12.4g -    at x = %.2f m\n", "largest horizontal strain", a.strain_absmax, a.x_strain_absmax);
-  std::printf("  %-34s %12.4g %s\n", "trough volume", a.trough_volume, run.problem.kinematics == solver::Kinematics::axisymmetric ? "m3" : "m3/m");
-  std::printf("  %-34s %12.4g m\n", "inflexion offset", a.inflexion_offset);
+  std::printf("  %-34s %12.4g m    %s\n", "largest uplift", a.uz_max, where(run, a.x_uz_max, a.y_uz_max).c_str());
+  std::printf("  %-34s %12.4g m    %s\n", "largest horizontal displacement", a.ux_absmax, where(run, a.x_ux_absmax, a.y_ux_absmax).c_str());
+  std::printf("  %-34s %12.4g rad  %s\n", "largest tilt", a.tilt_absmax, where(run, a.x_tilt_absmax, a.y_tilt_absmax).c_str());
+  std::printf("  %-34s %12.4g -    %s\n", "largest horizontal strain", a.strain_absmax, where(run, a.x_strain_absmax, a.y_strain_absmax).c_str());
+  const bool volume = three_d || run.problem.kinematics == solver::Kinematics::axisymmetric;
+  std::printf("  %-34s %12.4g %s\n", "trough volume", a.trough_volume, volume ? "m3" : "m3/m");
+  if (!three_d) std::printf("  %-34s %12.4g m\n", "inflexion offset", a.inflexion_offset);
   std::printf("  %-34s %12.3g\n", "min strength ratio (voided model)", run.stability.min_strength_ratio);
   std::printf("  %-34s %12s\n", "roof in tension beyond strength", run.stability.tension_in_roof ? "YES" : "no");
   std::printf("  %-34s %12.2g\n", "solve residual (worst)", std::max(run.result.reference.residual, run.result.voided.residual));
-  std::printf("\nResults in %s/ (summary.json, mesh.vtu, static/surface.csv, static/field.vtu, static/field_ref.vtu)\n",
-              dir.string().c_str());
+  std::printf("\nResults in %s/ (summary.json, mesh.vtu, static/surface.csv, %sstatic/field.vtu, static/field_ref.vtu)\n",
+              dir.string().c_str(), three_d ? "static/surface.vtu, " : "");
   std::printf("Caution: %s\n", caution_text);
 }
 
@@ -109,7 +120,7 @@ int run_command(const RunOptions& opt) {
     j["units"] = "SI: m, Pa, rad; z up, settlement negative; anomaly = with voids minus without";
     j["mesh"] = {{"nodes", run.mesh->n_nodes()},
                  {"elements", run.mesh->n_cells()},
-                 {"dofs", 2 * run.mesh->n_nodes()},
+                 {"dofs", static_cast<std::size_t>(run.mesh->dim() == 3 ? 3 : 2) * run.mesh->n_nodes()},
                  {"order", s.mesh.order},
                  {"min_quality", run.quality.min_quality},
                  {"mean_quality", run.quality.mean_quality},
@@ -164,7 +175,7 @@ int check_command(const fs::path& file) {
   const auto t0 = std::chrono::steady_clock::now();
   auto m = build_checked_mesh(s, &q, &progress);
   const double t_mesh = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
-  const double dofs = 2.0 * static_cast<double>(m->n_nodes());
+  const double dofs = (m->dim() == 3 ? 3.0 : 2.0) * static_cast<double>(m->n_nodes());
   const RunEstimate after = estimate_for(static_cast<double>(m->n_cells()), dofs);
   std::printf("mesh: %zu nodes, %zu elements (order %d), %.0f unknowns, built in %.2f s\n", m->n_nodes(), m->n_cells(),
               s.mesh.order, dofs, t_mesh);

@@ -24,10 +24,11 @@ std::string fmt(double v, int prec = 3) {
   return os.str();
 }
 
-// VTK's symmetric-tensor order: XX, YY, ZZ, XY, YZ, XZ (y is the out-of-plane direction).
-void push_tensor(std::vector<double>& out, const solver::Voigt4& s, bool engineering_shear) {
-  const double xz = engineering_shear ? 0.5 * s[2] : s[2];
-  out.insert(out.end(), {s[0], s[3], s[1], 0.0, 0.0, xz});
+// Sym6 is already in VTK's tensor order (XX, YY, ZZ, XY, YZ, XZ); strains carry engineering
+// shears, which the tensor halves.
+void push_tensor(std::vector<double>& out, const solver::Sym6& s, bool engineering_shear) {
+  const double f = engineering_shear ? 0.5 : 1.0;
+  out.insert(out.end(), {s[0], s[1], s[2], f * s[3], f * s[4], f * s[5]});
 }
 
 std::vector<mesh::Field> cell_fields(const StaticRun& run, const solver::ModelSolution& sol, bool with_ratio) {
@@ -47,10 +48,13 @@ std::vector<mesh::Field> cell_fields(const StaticRun& run, const solver::ModelSo
   return out;
 }
 
-mesh::Field displacement_field(const mesh::Mesh& m, const solver::Vector& u, const char* name) {
+mesh::Field displacement_field(const StaticRun& run, const solver::Vector& u, const char* name) {
   mesh::Field f{name, 3, {}};
-  f.values.reserve(3 * m.n_nodes());
-  for (std::size_t n = 0; n < m.n_nodes(); ++n) f.values.insert(f.values.end(), {u[2 * n], 0.0, u[2 * n + 1]});
+  f.values.reserve(3 * run.mesh->n_nodes());
+  for (std::size_t n = 0; n < run.mesh->n_nodes(); ++n) {
+    const auto d = solver::node_displacement(run.problem, u, n);
+    f.values.insert(f.values.end(), d.begin(), d.end());
+  }
   return f;
 }
 
@@ -58,7 +62,8 @@ mesh::Field displacement_field(const mesh::Mesh& m, const solver::Vector& u, con
 
 std::unique_ptr<mesh::Mesh> build_checked_mesh(const Scenario& s, mesh::Quality* quality, ProgressLine* progress) {
   if (progress) progress->step("meshing");
-  auto m = std::make_unique<mesh::Mesh>(mesh::build_mesh_2d(geometry_of(s)));
+  auto m = std::make_unique<mesh::Mesh>(s.model == Model::three_d ? mesh::build_mesh_3d(geometry3d_of(s))
+                                                                  : mesh::build_mesh_2d(geometry_of(s)));
   if (progress) progress->step("checking elements");
   *quality = mesh::measure_quality(*m);
   if (progress) progress->done();
@@ -86,9 +91,14 @@ StaticRun run_static(const Scenario& s, ProgressLine* progress) {
     throw SolveError(e.what());
   }
   if (progress) progress->done();
-  run.profile = solver::surface_profile(*run.mesh, run.result, far_field_of(s));
   run.far_field = far_field_of(s);
-  run.anomaly = solver::summarize(run.profile, s.model == Model::axisymmetric);
+  if (s.model == Model::three_d) {
+    run.map = solver::surface_map(run.problem, run.result, run.far_field, y_centre_of(s));
+    run.anomaly = solver::summarize_map(run.map, *run.mesh);
+  } else {
+    run.profile = solver::surface_profile(*run.mesh, run.result, run.far_field);
+    run.anomaly = solver::summarize(run.profile, s.model == Model::axisymmetric);
+  }
   run.stability = solver::screen_stability(run.problem, run.result);
   run.warnings = model_warnings(s);
   for (std::size_t k = 0; k < run.stability.voids.size(); ++k) {
@@ -104,13 +114,28 @@ StaticRun run_static(const Scenario& s, ProgressLine* progress) {
   return run;
 }
 
+namespace {
+
+// The roof span: across a tunnel (its diameter), the narrower plan side of a box, else the
+// horizontal extent of the section.
+double span_of(const Void& v, const VoidExtent& e) {
+  switch (v.shape) {
+    case Void::Shape::tunnel:
+    case Void::Shape::sphere: return 2 * v.radius;
+    case Void::Shape::box: return std::min(v.size[0], v.size[1]);
+    default: return e.x_right - e.x_left;
+  }
+}
+
+}  // namespace
+
 std::vector<std::string> model_warnings(const Scenario& s) {
   std::vector<std::string> w;
   double d_max = 0;
   for (std::size_t k = 0; k < s.voids.size(); ++k) {
     const VoidExtent e = extent_of(s.voids[k]);
     d_max = std::max(d_max, -e.z_bottom);
-    const double cover = -e.z_top, span = e.x_right - e.x_left;
+    const double cover = -e.z_top, span = span_of(s.voids[k], e);
     // Waltham & Fookes (2003): cave roofs thicker than 0.7 × span are normally stable.
     if (span > 0 && cover < 0.7 * span)
       w.push_back("void " + std::to_string(k) + ": cover " + fmt(cover) + " m is less than 0.7 × its span " + fmt(span) +
@@ -144,11 +169,10 @@ std::vector<std::string> model_warnings(const Scenario& s) {
   return w;
 }
 
-void write_static_outputs(const StaticRun& run, const Scenario& s, const std::filesystem::path& dir) {
-  const mesh::Mesh& m = *run.mesh;
-  std::filesystem::create_directories(dir / "static");
-  const bool axi = s.model == Model::axisymmetric;
+namespace {
 
+void write_surface_2d(const StaticRun& run, const Scenario& s, const std::filesystem::path& dir) {
+  const bool axi = s.model == Model::axisymmetric;
   CsvTable t({"x", "ux", "uz", "ux_ref", "uz_ref", "dux", "duz", "tilt", "strain_xx", "duz_rel", "curvature"});
   t.comment(std::string("voidsign ") + VOIDSIGN_VERSION + " static surface signature: " + s.title);
   t.comment(std::string("units: SI; x") + (axi ? " (radius r)" : "") +
@@ -158,17 +182,63 @@ void write_static_outputs(const StaticRun& run, const Scenario& s, const std::fi
   for (const auto& r : run.profile)
     t.add_row({r.x, r.ux, r.uz, r.ux_ref, r.uz_ref, r.dux, r.duz, r.tilt, r.strain, r.duz_rel, r.curvature});
   t.write(dir / "static" / "surface.csv");
+}
 
+void write_surface_3d(const StaticRun& run, const Scenario& s, const std::filesystem::path& dir) {
+  CsvTable t({"x", "y", "ux", "uy", "uz", "ux_ref", "uy_ref", "uz_ref", "dux", "duy", "duz", "tilt_x", "tilt_y",
+              "strain_xx", "strain_yy", "strain_xy", "duz_rel"});
+  t.comment(std::string("voidsign ") + VOIDSIGN_VERSION + " static surface signature (3D): " + s.title);
+  t.comment("units: SI; x, y m; u* m; tilt rad; strain -. z up, settlement negative.");
+  t.comment("d* = with voids minus without; tilt_x = d(duz)/dx, tilt_y = d(duz)/dy; strain_* = horizontal strain tensor of "
+            "the anomaly (extension positive); duz_rel = duz minus its mean on the far-field ring (" +
+            std::to_string(run.far_field.offset) + " m from the voids, or the block's edge)");
+  for (const auto& p : run.map.points)
+    t.add_row({p.x, p.y, p.u[0], p.u[1], p.u[2], p.u_ref[0], p.u_ref[1], p.u_ref[2], p.du[0], p.du[1], p.du[2], p.tilt_x,
+               p.tilt_y, p.strain_xx, p.strain_yy, p.strain_xy, p.duz_rel});
+  t.write(dir / "static" / "surface.csv");
+
+  // The ground surface as a 2D mesh of its own, for maps in ParaView.
+  mesh::Mesh surf;
+  surf.type = run.map.nodes_per_triangle == 6 ? mesh::CellType::tri6 : mesh::CellType::tri3;
+  for (const auto& p : run.map.points) surf.nodes.push_back({p.x, p.y, 0.0});
+  surf.cells = run.map.triangles;
+  surf.layer.assign(run.map.triangles.size() / static_cast<std::size_t>(run.map.nodes_per_triangle), 0);
+  surf.void_id.assign(surf.layer.size(), -1);
+  mesh::Field du{"displacement_anomaly", 3, {}}, u{"displacement", 3, {}}, uref{"displacement_ref", 3, {}};
+  mesh::Field tilt{"tilt", 3, {}}, strain{"strain_anomaly", 6, {}}, rel{"duz_rel", 1, {}};
+  for (const auto& p : run.map.points) {
+    du.values.insert(du.values.end(), p.du.begin(), p.du.end());
+    u.values.insert(u.values.end(), p.u.begin(), p.u.end());
+    uref.values.insert(uref.values.end(), p.u_ref.begin(), p.u_ref.end());
+    tilt.values.insert(tilt.values.end(), {p.tilt_x, p.tilt_y, 0.0});
+    strain.values.insert(strain.values.end(), {p.strain_xx, p.strain_yy, 0.0, p.strain_xy, 0.0, 0.0});
+    rel.values.push_back(p.duz_rel);
+  }
+  write_atomic(dir / "static" / "surface.vtu", [&](const std::filesystem::path& tmp) {
+    mesh::write_vtu(tmp, surf, {du, u, uref, tilt, strain, rel}, {});
+  });
+}
+
+}  // namespace
+
+void write_static_outputs(const StaticRun& run, const Scenario& s, const std::filesystem::path& dir) {
+  const mesh::Mesh& m = *run.mesh;
+  std::filesystem::create_directories(dir / "static");
+
+  if (s.model == Model::three_d)
+    write_surface_3d(run, s, dir);
+  else
+    write_surface_2d(run, s, dir);
   const solver::ModelSolution& v = run.result.voided;
   const solver::ModelSolution& ref = run.result.reference;
-  mesh::Field du = displacement_field(m, v.u - ref.u, "displacement_anomaly");
+  mesh::Field du = displacement_field(run, v.u - ref.u, "displacement_anomaly");
   std::vector<bool> solid(m.n_cells());
   for (std::size_t c = 0; c < m.n_cells(); ++c) solid[c] = v.active[c] != 0;
   write_atomic(dir / "static" / "field.vtu", [&](const std::filesystem::path& tmp) {
-    mesh::write_vtu(tmp, m, {displacement_field(m, v.u, "displacement"), du}, cell_fields(run, v, true), &solid);
+    mesh::write_vtu(tmp, m, {displacement_field(run, v.u, "displacement"), du}, cell_fields(run, v, true), &solid);
   });
   write_atomic(dir / "static" / "field_ref.vtu", [&](const std::filesystem::path& tmp) {
-    mesh::write_vtu(tmp, m, {displacement_field(m, ref.u, "displacement")}, cell_fields(run, ref, false));
+    mesh::write_vtu(tmp, m, {displacement_field(run, ref.u, "displacement")}, cell_fields(run, ref, false));
   });
   write_atomic(dir / "mesh.vtu", [&](const std::filesystem::path& tmp) {
     mesh::Field layer{"layer", 1, {}}, vid{"void_id", 1, {}};
@@ -186,14 +256,18 @@ nlohmann::json static_summary(const StaticRun& run) {
   j["residual"] = std::max(run.result.reference.residual, run.result.voided.residual);
   j["residual_reference"] = run.result.reference.residual;
   j["residual_voids"] = run.result.voided.residual;
+  j["linear_solver"] = run.result.solver;
+  j["iterations"] = run.result.iterations;
   j["anomaly"] = {{"uz_min", a.uz_min},
                   {"uz_max", a.uz_max},
                   {"x_uz_min", a.x_uz_min},
+                  {"y_uz_min", a.y_uz_min},
                   {"x_uz_max", a.x_uz_max},
                   {"ux_absmax", a.ux_absmax},
                   {"x_ux_absmax", a.x_ux_absmax},
                   {"tilt_absmax", a.tilt_absmax},
                   {"x_tilt_absmax", a.x_tilt_absmax},
+                  {"y_tilt_absmax", a.y_tilt_absmax},
                   {"strain_absmax", a.strain_absmax},
                   {"x_strain_absmax", a.x_strain_absmax},
                   {"strain_min", a.strain_min},
@@ -211,9 +285,8 @@ nlohmann::json static_summary(const StaticRun& run) {
                          {"tension_in_roof", vs.tension_in_roof},
                          {"max_roof_tension", vs.max_roof_tension},
                          {"wall_translation", run.result.voided.wall_translation.empty()
-                                                  ? std::vector<double>{0, 0}
-                                                  : std::vector<double>{run.result.voided.wall_translation[k][0],
-                                                                        run.result.voided.wall_translation[k][1]}}};
+                                                  ? std::array<double, 3>{0, 0, 0}
+                                                  : run.result.voided.wall_translation[k]}};
     jv["min_strength_ratio"] = vs.evaluated ? nlohmann::json(vs.min_strength_ratio) : nlohmann::json(nullptr);
     voids.push_back(jv);
   }
@@ -237,6 +310,12 @@ RunEstimate estimate_for(double cells, double dofs) {
 }
 
 RunEstimate estimate_run(const Scenario& s) {
+  if (s.model == Model::three_d) {
+    const double cells = mesh::estimate_cells_3d(geometry3d_of(s));
+    // Tetrahedral meshes: about cells/5.5 vertices and 1.27 × cells edges.
+    const double nodes = cells * (s.mesh.order == 2 ? 1.45 : 0.18);
+    return estimate_for(cells, 3 * nodes);
+  }
   const double cells = mesh::estimate_cells_2d(geometry_of(s));
   // Triangles: about half as many vertices as cells; quadratic adds one node per edge (×4).
   const double nodes = cells * (s.mesh.order == 2 ? 2.0 : 0.5);

@@ -14,6 +14,7 @@
 #include "solver/analysis/signature.hpp"
 #include "solver/analysis/stability.hpp"
 #include "solver/analysis/static.hpp"
+#include "solver/analysis/surface_map.hpp"
 
 namespace voidsign::cli {
 
@@ -22,7 +23,8 @@ struct StaticRun {
   mesh::Quality quality;
   solver::StaticProblem problem;  ///< points into *mesh
   solver::StaticResult result;
-  std::vector<solver::SurfaceRow> profile;
+  std::vector<solver::SurfaceRow> profile;  ///< 2D models
+  solver::SurfaceMap map;                   ///< 3D models
   solver::Anomaly anomaly;
   solver::Stability stability;
   solver::FarField far_field;  ///< where duz_rel is measured from
@@ -39,7 +41,8 @@ StaticRun run_static(const Scenario& s, ProgressLine* progress);
 /// Warnings about the model itself (block size, roof stability, soft roofs); appended to run.warnings.
 std::vector<std::string> model_warnings(const Scenario& s);
 
-/// Writes static/surface.csv, static/field.vtu, static/field_ref.vtu and mesh.vtu under `dir`.
+/// Writes static/surface.csv, static/field.vtu, static/field_ref.vtu and mesh.vtu under `dir`
+/// (3D adds static/surface.vtu, the ground surface with the anomaly fields).
 void write_static_outputs(const StaticRun& run, const Scenario& s, const std::filesystem::path& dir);
 
 /// The "static" block of summary.json.

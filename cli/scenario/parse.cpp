@@ -293,6 +293,9 @@ Box bounding_box(const Shape& s) {
       return {s.c.x - hx, s.c.x + hx, s.c.z - hz, s.c.z + hz};
     }
     case Void::Shape::polygon: break;
+    case Void::Shape::sphere:
+    case Void::Shape::box:
+    case Void::Shape::tunnel: return {s.c.x, s.c.x, s.c.z, s.c.z};  // 3d: see Solid
   }
   Box b{s.pts[0].x, s.pts[0].x, s.pts[0].z, s.pts[0].z};
   for (const Pt& p : s.pts) {
@@ -330,6 +333,9 @@ bool contains(const Shape& s, Pt p, double tol) {
     case Void::Shape::rectangle:
       return std::abs(q.x) <= s.w / 2 + tol && std::abs(q.z) <= s.h / 2 + tol;
     case Void::Shape::polygon: break;
+    case Void::Shape::sphere:
+    case Void::Shape::box:
+    case Void::Shape::tunnel: return false;  // 3d: see Solid
   }
   bool inside = false;  // even-odd ray casting along +x
   const auto& v = s.pts;
@@ -405,17 +411,296 @@ bool shapes_overlap(const Shape& s1, const Shape& s2, double tol) {
   return false;
 }
 
-/// The size that governs the mesh on a void's boundary: radius, smaller semi-axis, half the
-/// smaller side, or half the smaller side of a polygon's bounding box.
-double feature_size(const Void& v, const Shape& s) {
+/// The size that governs the mesh on a void's boundary: radius (circle, sphere, tunnel), smaller
+/// semi-axis, half the smaller side of a rectangle, half the smallest edge of a box, or half the
+/// smaller side of a polygon's bounding box.
+double feature_size(const Void& v) {
   switch (v.shape) {
     case Void::Shape::circle: return v.radius;
     case Void::Shape::ellipse: return std::min(v.axes[0], v.axes[1]);
     case Void::Shape::rectangle: return std::min(v.width, v.height) / 2;
     case Void::Shape::polygon: break;
+    case Void::Shape::sphere:
+    case Void::Shape::tunnel: return v.radius;
+    case Void::Shape::box: return std::min({v.size[0], v.size[1], v.size[2]}) / 2;
   }
-  const Box b = bounding_box(s);
+  const Box b = bounding_box(shape_of(v));
   return std::min(b.x_max - b.x_min, b.z_max - b.z_min) / 2;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Void geometry in 3D (z up, z = -depth). Every 3d void is convex: a sphere, a box (a vertical
+// prism on a rectangle turned by `yaw` in plan) or a tunnel (a straight circular cylinder with
+// flat ends square to its axis).
+
+struct V3 {
+  double x = 0, y = 0, z = 0;
+};
+
+V3 operator+(V3 a, V3 b) { return {a.x + b.x, a.y + b.y, a.z + b.z}; }
+V3 operator-(V3 a, V3 b) { return {a.x - b.x, a.y - b.y, a.z - b.z}; }
+V3 operator*(double k, V3 a) { return {k * a.x, k * a.y, k * a.z}; }
+double dot(V3 a, V3 b) { return a.x * b.x + a.y * b.y + a.z * b.z; }
+double norm(V3 a) { return std::sqrt(dot(a, a)); }
+double coord(V3 a, int i) { return i == 0 ? a.x : (i == 1 ? a.y : a.z); }
+
+struct Solid {
+  Void::Shape kind = Void::Shape::sphere;
+  V3 c;                              // centre (tunnel: midpoint of the axis)
+  double r = 0;                      // sphere, tunnel
+  std::array<double, 3> h{0, 0, 0};  // box: half edges along its own axes
+  double cos_y = 1, sin_y = 0;       // box: yaw
+  V3 a, b, d;                        // tunnel: axis ends and unit direction a -> b
+  double len = 0;                    // tunnel: axis length
+
+  V3 ex() const { return {cos_y, sin_y, 0}; }  // box axes in plan
+  V3 ey() const { return {-sin_y, cos_y, 0}; }
+};
+
+V3 point_of(const std::array<double, 3>& xyd) { return {xyd[0], xyd[1], -xyd[2]}; }
+
+Solid solid_of(const Void& v) {
+  Solid s;
+  s.kind = v.shape;
+  s.c = {v.x, v.y, -v.depth};
+  s.r = v.radius;
+  s.h = {v.size[0] / 2, v.size[1] / 2, v.size[2] / 2};
+  const double t = v.yaw * std::numbers::pi / 180.0;
+  s.cos_y = std::cos(t);
+  s.sin_y = std::sin(t);
+  if (v.shape == Void::Shape::tunnel) {
+    s.a = point_of(v.from);
+    s.b = point_of(v.to);
+    s.c = 0.5 * (s.a + s.b);
+    s.len = norm(s.b - s.a);
+    s.d = s.len > 0 ? (1 / s.len) * (s.b - s.a) : V3{0, 0, 1};
+  }
+  return s;
+}
+
+/// How far a tunnel's end discs reach beyond the axis ends along coordinate i: r sqrt(1 - d_i^2).
+double disc_reach(const Solid& s, int i) {
+  const double di = coord(s.d, i);
+  return s.r * std::sqrt(std::max(0.0, 1 - di * di));
+}
+
+/// Axis-aligned extent: lo/hi of x, y, z.
+struct Box3 {
+  std::array<double, 3> lo{0, 0, 0}, hi{0, 0, 0};
+};
+
+Box3 extent(const Solid& s) {
+  Box3 e;
+  for (int i = 0; i < 3; ++i) {
+    double lo = coord(s.c, i), hi = lo;
+    switch (s.kind) {
+      case Void::Shape::box: {
+        const double reach = i == 0   ? std::abs(s.h[0] * s.cos_y) + std::abs(s.h[1] * s.sin_y)
+                             : i == 1 ? std::abs(s.h[0] * s.sin_y) + std::abs(s.h[1] * s.cos_y)
+                                      : s.h[2];
+        lo -= reach;
+        hi += reach;
+        break;
+      }
+      case Void::Shape::tunnel: {
+        const double reach = disc_reach(s, i);
+        lo = std::min(coord(s.a, i), coord(s.b, i)) - reach;
+        hi = std::max(coord(s.a, i), coord(s.b, i)) + reach;
+        break;
+      }
+      default:  // sphere
+        lo -= s.r;
+        hi += s.r;
+    }
+    e.lo[static_cast<std::size_t>(i)] = lo;
+    e.hi[static_cast<std::size_t>(i)] = hi;
+  }
+  return e;
+}
+
+/// Distance from p to the solid box (0 inside).
+double box_distance(const Solid& s, V3 p) {
+  const V3 q = p - s.c;
+  const double du = std::max(std::abs(dot(q, s.ex())) - s.h[0], 0.0);
+  const double dv = std::max(std::abs(dot(q, s.ey())) - s.h[1], 0.0);
+  const double dz = std::max(std::abs(q.z) - s.h[2], 0.0);
+  return std::sqrt(du * du + dv * dv + dz * dz);
+}
+
+/// Distance from p to the solid flat-ended cylinder of a tunnel (0 inside).
+double cylinder_distance(const Solid& s, V3 p) {
+  const V3 q = p - s.a;
+  const double t = dot(q, s.d);
+  const double radial = std::max(norm(q - t * s.d) - s.r, 0.0);
+  const double axial = t < 0 ? -t : std::max(t - s.len, 0.0);
+  return std::hypot(axial, radial);
+}
+
+/// Shortest distance between the segments p0-p1 and q0-q1.
+double segment_segment_distance(V3 p0, V3 p1, V3 q0, V3 q1) {
+  const V3 u = p1 - p0, w = q1 - q0, r = p0 - q0;
+  const double a = dot(u, u), e = dot(w, w), f = dot(w, r);
+  double s = 0, t = 0;
+  if (a <= 0 && e <= 0) return norm(r);
+  if (a <= 0) {
+    t = std::clamp(f / e, 0.0, 1.0);
+  } else {
+    const double c = dot(u, r);
+    if (e <= 0) {
+      s = std::clamp(-c / a, 0.0, 1.0);
+    } else {
+      const double b = dot(u, w), den = a * e - b * b;
+      s = den > 1e-14 * a * e ? std::clamp((b * f - c * e) / den, 0.0, 1.0) : 0.0;
+      t = (b * s + f) / e;
+      if (t < 0) {
+        t = 0;
+        s = std::clamp(-c / a, 0.0, 1.0);
+      } else if (t > 1) {
+        t = 1;
+        s = std::clamp((b - c) / a, 0.0, 1.0);
+      }
+    }
+  }
+  return norm((p0 + s * u) - (q0 + t * w));
+}
+
+/// Exact separating-axis test for two boxes. Both are vertical prisms, so the candidate axes
+/// are the vertical (their depth intervals) and the four edge normals of their plan rectangles.
+bool boxes_apart(const Solid& p, const Solid& q, double tol) {
+  if (std::abs(p.c.z - q.c.z) > p.h[2] + q.h[2] + tol) return true;
+  const V3 dc = q.c - p.c;
+  for (const V3 axis : {p.ex(), p.ey(), q.ex(), q.ey()}) {
+    const double rp = p.h[0] * std::abs(dot(p.ex(), axis)) + p.h[1] * std::abs(dot(p.ey(), axis));
+    const double rq = q.h[0] * std::abs(dot(q.ex(), axis)) + q.h[1] * std::abs(dot(q.ey(), axis));
+    if (std::abs(dot(dc, axis)) > rp + rq + tol) return true;
+  }
+  return false;
+}
+
+/// The point of the solid farthest along n.
+V3 support(const Solid& s, V3 n) {
+  switch (s.kind) {
+    case Void::Shape::box: {
+      auto sg = [](double v) { return v < 0 ? -1.0 : 1.0; };
+      return s.c + (sg(dot(n, s.ex())) * s.h[0]) * s.ex() +
+             (sg(dot(n, s.ey())) * s.h[1]) * s.ey() + V3{0, 0, sg(n.z) * s.h[2]};
+    }
+    case Void::Shape::tunnel: {
+      const double t = dot(n, s.d);
+      const V3 radial = n - t * s.d;
+      const double l = norm(radial);
+      const V3 end = t >= 0 ? s.b : s.a;
+      return l > 1e-12 * norm(n) ? end + (s.r / l) * radial : end;
+    }
+    default: {  // sphere
+      const double l = norm(n);
+      return l > 0 ? s.c + (s.r / l) * n : s.c + V3{s.r, 0, 0};
+    }
+  }
+}
+
+/// The point of the convex hull of `w` (1 to 4 points) nearest the origin; `w` is reduced to the
+/// points of the face that holds it. Every face is tried (15 at most), which stays robust where
+/// the simplex is flat.
+V3 nearest_on_hull(std::vector<V3>& w) {
+  const unsigned n = static_cast<unsigned>(w.size());
+  double best = std::numeric_limits<double>::infinity();
+  V3 best_point = w[0];
+  unsigned best_mask = 1;
+  for (unsigned mask = 1; mask < (1u << n); ++mask) {
+    std::vector<V3> pts;
+    for (unsigned i = 0; i < n; ++i)
+      if (mask & (1u << i)) pts.push_back(w[i]);
+    // x = p0 + sum mu_k e_k with e_k = p_k - p0; the normal equations G mu = -E p0.
+    const std::size_t m = pts.size() - 1;
+    std::array<V3, 3> e{};
+    double g[3][4] = {};
+    for (std::size_t k = 0; k < m; ++k) e[k] = pts[k + 1] - pts[0];
+    double scale = 0;
+    for (std::size_t k = 0; k < m; ++k) {
+      for (std::size_t l = 0; l < m; ++l) g[k][l] = dot(e[k], e[l]);
+      g[k][m] = -dot(e[k], pts[0]);
+      scale = std::max(scale, g[k][k]);
+    }
+    bool singular = false;
+    for (std::size_t col = 0; col < m && !singular; ++col) {  // Gauss-Jordan, partial pivoting
+      std::size_t piv = col;
+      for (std::size_t row = col + 1; row < m; ++row)
+        if (std::abs(g[row][col]) > std::abs(g[piv][col])) piv = row;
+      if (std::abs(g[piv][col]) <= 1e-12 * scale) {
+        singular = true;
+        break;
+      }
+      for (std::size_t k = 0; k <= m; ++k) std::swap(g[col][k], g[piv][k]);
+      for (std::size_t row = 0; row < m; ++row) {
+        if (row == col) continue;
+        const double f = g[row][col] / g[col][col];
+        for (std::size_t k = col; k <= m; ++k) g[row][k] -= f * g[col][k];
+      }
+    }
+    if (singular) continue;  // a flat face: its own faces cover it
+    double lambda0 = 1;
+    bool inside = true;
+    V3 x = pts[0];
+    for (std::size_t k = 0; k < m; ++k) {
+      const double mu = g[k][m] / g[k][k];
+      inside = inside && mu >= 0;
+      lambda0 -= mu;
+      x = x + mu * e[k];
+    }
+    if (!inside || lambda0 < 0) continue;
+    if (dot(x, x) < best) {
+      best = dot(x, x);
+      best_point = x;
+      best_mask = mask;
+    }
+  }
+  std::vector<V3> kept;
+  for (unsigned i = 0; i < n; ++i)
+    if (best_mask & (1u << i)) kept.push_back(w[i]);
+  w = kept;
+  return best_point;
+}
+
+/// Whether two convex solids come within `tol` of each other: the distance iteration of
+/// Gilbert, Johnson and Keerthi (GJK) on their Minkowski difference p - q.
+bool solids_within(const Solid& p, const Solid& q, double tol) {
+  V3 v = p.c - q.c;  // both centres are inside their solids: a point of p - q
+  std::vector<V3> simplex;
+  for (int it = 0; it < 500; ++it) {
+    const double vn = norm(v);
+    if (vn <= tol) return true;
+    const V3 w = support(p, -1.0 * v) - support(q, v);
+    if (dot(v, w) / vn > tol) return false;  // a separating plane with a gap above tol
+    if (vn * vn - dot(v, w) <= 1e-12 * vn * vn) return false;  // converged: distance = |v|
+    for (const V3& s : simplex)
+      if (norm(s - w) <= 1e-12 * vn) return false;  // no progress: |v| is the distance
+    simplex.push_back(w);
+    v = nearest_on_hull(simplex);
+  }
+  return norm(v) <= tol;
+}
+
+/// Whether two 3d voids overlap or come within `tol` of each other.
+bool solids_meet(Solid p, Solid q, double tol) {
+  using S = Void::Shape;
+  if (p.kind > q.kind) std::swap(p, q);  // order: sphere, box, tunnel
+  const Box3 ep = extent(p), eq = extent(q);
+  for (std::size_t i = 0; i < 3; ++i)
+    if (ep.hi[i] + tol < eq.lo[i] || eq.hi[i] + tol < ep.lo[i]) return false;
+  if (p.kind == S::sphere) {
+    switch (q.kind) {
+      case S::sphere: return norm(p.c - q.c) <= p.r + q.r + tol;
+      case S::box: return box_distance(q, p.c) <= p.r + tol;
+      default: return cylinder_distance(q, p.c) <= p.r + tol;
+    }
+  }
+  if (p.kind == S::box && q.kind == S::box) return !boxes_apart(p, q, tol);
+  // A tunnel with a box or another tunnel. Two tunnels whose axes are farther apart than the
+  // sum of the radii are clear; the rest go to the exact distance iteration.
+  if (p.kind == S::tunnel && segment_segment_distance(p.a, p.b, q.a, q.b) > p.r + q.r + tol)
+    return false;
+  return solids_within(p, q, tol);
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -493,10 +778,12 @@ Material parse_material(const Field& f, const std::string& name) {
 }
 
 struct VoidInput {
+  explicit VoidInput(const Field& f) : self(f) {}
   Void v;
   Field self;
-  std::optional<Field> x, depth, points;
+  std::optional<Field> x, y, depth, points, from, to;
   std::vector<Field> point_fields;
+  std::vector<Field> from_items, to_items;  // tunnel: [x, y, depth] of each end
 };
 
 void parse_contents(const Field& f, Void& v) {
@@ -598,18 +885,93 @@ void check_polygon(const VoidInput& in) {
   }
 }
 
-VoidInput parse_void(const Field& f) {
-  static const Strings shapes = {"circle", "ellipse", "rectangle", "polygon"};
-  const Map m = f.map();
-  VoidInput in{{}, f, {}, {}, {}, {}};
+const Strings k_shapes_2d = {"circle", "ellipse", "rectangle", "polygon"};
+const Strings k_shapes_3d = {"sphere", "box", "tunnel"};
+
+std::string model_name(Model m) {
+  switch (m) {
+    case Model::plane_strain: return "plane-strain";
+    case Model::axisymmetric: return "axisymmetric";
+    case Model::three_d: break;
+  }
+  return "3d";
+}
+
+/// A point [x, y, depth] in m.
+std::array<double, 3> point3(const Field& f, std::vector<Field>& items) {
+  items = f.list();
+  if (items.size() != 3)
+    f.fail("expected a point [x, y, depth], found " + std::to_string(items.size()) + " values");
+  return {items[0].number(), items[1].number(), items[2].number()};
+}
+
+void parse_void_3d(const Map& m, const std::string& shape, VoidInput& in) {
   Void& v = in.v;
-  const Field sf = m.need("shape", "circle, ellipse, rectangle or polygon");
+  if (shape == "sphere") {
+    m.allow({"shape", "x", "y", "depth", "radius", "contents"});
+    v.shape = Void::Shape::sphere;
+    v.radius = m.need("radius", "m").positive();
+  } else if (shape == "box") {
+    m.allow({"shape", "x", "y", "depth", "size", "yaw", "contents"});
+    v.shape = Void::Shape::box;
+    const Field sz = m.need("size", "the edge lengths [lx, ly, lz] in m");
+    const auto items = sz.list();
+    if (items.size() != 3)
+      sz.fail("expected three edge lengths [lx, ly, lz], found " + std::to_string(items.size()) +
+              " values");
+    v.size = {items[0].positive(), items[1].positive(), items[2].positive()};
+    if (auto yf = m.get("yaw")) v.yaw = yf->number();
+  } else {
+    m.allow({"shape", "from", "to", "radius", "contents"});
+    v.shape = Void::Shape::tunnel;
+    in.from = m.need("from", "the start of the axis, [x, y, depth] in m");
+    in.to = m.need("to", "the end of the axis, [x, y, depth] in m");
+    v.from = point3(*in.from, in.from_items);
+    v.to = point3(*in.to, in.to_items);
+    v.radius = m.need("radius", "m").positive();
+    const double len = std::hypot(v.to[0] - v.from[0], v.to[1] - v.from[1], v.to[2] - v.from[2]);
+    if (len <= 1e-9 * v.radius)
+      in.to->fail(len == 0 ? "the tunnel has zero length: 'to' is the same point as 'from'"
+                           : "the tunnel has almost zero length (" + num(len) + " m)");
+    // The centre (used for ground loss) is the midpoint of the axis.
+    v.x = 0.5 * (v.from[0] + v.to[0]);
+    v.y = 0.5 * (v.from[1] + v.to[1]);
+    v.depth = 0.5 * (v.from[2] + v.to[2]);
+    return;
+  }
+  in.x = m.need("x", "m, position of the centre along x");
+  in.y = m.need("y", "m, position of the centre along y");
+  in.depth = m.need("depth", "m, depth of the centre below the surface");
+  v.x = in.x->number();
+  v.y = in.y->number();
+  v.depth = in.depth->number();
+}
+
+VoidInput parse_void(const Field& f, Model model) {
+  const bool three_d = model == Model::three_d;
+  const Map m = f.map();
+  VoidInput in(f);
+  Void& v = in.v;
+  const Field sf = m.need("shape", three_d ? "sphere, box or tunnel"
+                                           : "circle, ellipse, rectangle or polygon");
   if (sf.node.IsScalar()) {
     const std::string s = sf.node.Scalar();
-    if (s == "sphere" || s == "box" || s == "tunnel")
-      sf.fail("shape '" + s + "' belongs to 3d models, which this version does not support");
+    const bool is_2d = std::find(k_shapes_2d.begin(), k_shapes_2d.end(), s) != k_shapes_2d.end();
+    const bool is_3d = std::find(k_shapes_3d.begin(), k_shapes_3d.end(), s) != k_shapes_3d.end();
+    if (is_3d && !three_d)
+      sf.fail("shape '" + s + "' belongs to 3d models; this scenario's model is " +
+              model_name(model) + ", which takes circle, ellipse, rectangle or polygon");
+    if (is_2d && three_d)
+      sf.fail("shape '" + s + "' belongs to the 2D models (plane-strain, axisymmetric); a 3d "
+              "model takes sphere, box or tunnel");
   }
-  const std::string shape = sf.choice(shapes, "shape");
+  const std::string shape = sf.choice(three_d ? k_shapes_3d : k_shapes_2d, "shape");
+  if (three_d) {
+    parse_void_3d(m, shape, in);
+    if (auto c = m.get("contents")) parse_contents(*c, v);
+    v.loc = f.loc();
+    return in;
+  }
   if (shape == "circle") {
     m.allow({"shape", "x", "depth", "radius", "contents"});
     v.shape = Void::Shape::circle;
@@ -746,6 +1108,72 @@ void check_void_in_domain(const VoidInput& in, const Scenario& sc) {
   }
 }
 
+/// The field to point at for the extreme of coordinate i (0 x, 1 y, 2 depth) on the `high` side
+/// (the larger x, y or depth): the centre's key, or for a tunnel the end that reaches there.
+const Field& field_3d(const VoidInput& in, int i, bool high) {
+  const auto k = static_cast<std::size_t>(i);
+  if (in.v.shape == Void::Shape::tunnel) {
+    const bool from_end = high ? in.v.from[k] >= in.v.to[k] : in.v.from[k] <= in.v.to[k];
+    return from_end ? in.from_items[k] : in.to_items[k];
+  }
+  return i == 0 ? *in.x : (i == 1 ? *in.y : *in.depth);
+}
+
+std::string shape_word(const Void& v) {
+  switch (v.shape) {
+    case Void::Shape::sphere: return "sphere";
+    case Void::Shape::box: return "box";
+    case Void::Shape::tunnel: return "tunnel";
+    default: return "void";
+  }
+}
+
+/// ", at its 'from' end" for a tunnel, so the reader knows which end is meant.
+std::string end_note(const VoidInput& in, int i, bool high) {
+  if (in.v.shape != Void::Shape::tunnel) return "";
+  const auto k = static_cast<std::size_t>(i);
+  if (in.v.from[k] == in.v.to[k]) return ", along its whole length";
+  const bool from_end = high ? in.v.from[k] > in.v.to[k] : in.v.from[k] < in.v.to[k];
+  return std::string(", at its '") + (from_end ? "from" : "to") + "' end";
+}
+
+void check_void_in_block(const VoidInput& in, const Scenario& sc) {
+  const Void& v = in.v;
+  const Box3 e = extent(solid_of(v));
+  const std::string what = "the " + shape_word(v);
+  const double top = 0.0 - e.hi[2], bottom = 0.0 - e.lo[2];  // 0.0 - z: no "-0" in messages
+  if (top <= 0)
+    field_3d(in, 2, false)
+        .fail(what + " breaks the ground surface" + end_note(in, 2, false) + ": its top is at depth " +
+              num(top) + " m, " +
+              (top < 0 ? num(-top) + " m above the surface" : std::string("on the surface")) +
+              "; every part must lie below 0");
+  if (bottom >= sc.domain.depth)
+    field_3d(in, 2, true)
+        .fail(what + " leaves the block through the bottom" + end_note(in, 2, true) +
+              ": it reaches depth " + num(bottom) + " m, " +
+              (bottom > sc.domain.depth ? num(bottom - sc.domain.depth) + " m below it"
+                                        : std::string("on it")) +
+              " (domain.depth = " + num(sc.domain.depth) + " m)");
+  const std::array<double, 2> half = {sc.domain.width / 2, sc.domain.length / 2};
+  const std::array<std::string, 2> axis = {"x", "y"};
+  const std::array<std::string, 2> extent_key = {"domain.width", "domain.length"};
+  for (std::size_t i = 0; i < 2; ++i) {
+    const int c = static_cast<int>(i);
+    for (const bool high : {false, true}) {
+      const double reach = high ? e.hi[i] : e.lo[i];
+      const double face = high ? half[i] : -half[i];
+      const double beyond = high ? reach - face : face - reach;
+      if (beyond < 0) continue;
+      field_3d(in, c, high)
+          .fail(what + " leaves the block through the side " + axis[i] + " = " + num(face) +
+                " m" + end_note(in, c, high) + ": it reaches " + axis[i] + " = " + num(reach) +
+                " m, " + (beyond > 0 ? num(beyond) + " m beyond it" : std::string("on it")) +
+                " (" + extent_key[i] + " = " + num(2 * half[i]) + " m)");
+    }
+  }
+}
+
 void check_layers(const std::vector<Field>& items, const Scenario& sc) {
   double total = 0;
   const double depth = sc.domain.depth;
@@ -767,6 +1195,56 @@ void check_layers(const std::vector<Field>& items, const Scenario& sc) {
               num(depth - (total - sc.layers[i].thickness)) + " m thick, not the " +
               num(sc.layers[i].thickness) + " m given");
   }
+}
+
+/// Warnings for a 3d void near the block's faces: closer than one near-void element size, and
+/// closer than the common-practice clearance that keeps the boundary conditions from altering
+/// the result (docs/scenario-format.md, "Distance to the boundaries"):
+///   bottom:  3 x the void's height (its vertical extent);
+///   sides:   3 x the larger of the void's centre depth and its height.
+void warn_near_boundaries_3d(const VoidInput& in, const Scenario& sc) {
+  const Void& v = in.v;
+  const Box3 e = extent(solid_of(v));
+  const double h = sc.mesh.near_void, feature = feature_size(v);
+  const Field& self = in.self;
+  if (h > feature / 4)
+    self.warn("the near-void element size " + num(h) + " m is coarse for this void (size " +
+              num(feature) + " m): its outline gets few elements");
+  const double top = 0.0 - e.hi[2], bottom_gap = sc.domain.depth + e.lo[2];
+  if (top < h)
+    self.warn("the void is closer to the ground surface (" + num(top) +
+              " m) than one near-void element size (" + num(h) + " m)");
+  const double height = e.hi[2] - e.lo[2];
+  if (bottom_gap < h)
+    self.warn("the void is closer to the bottom of the domain (" + num(bottom_gap) +
+              " m) than one near-void element size (" + num(h) + " m)");
+  else if (bottom_gap < 3 * height)
+    self.warn("the void is " + num(bottom_gap) + " m above the bottom of the block; common "
+              "practice keeps at least 3 x its height (3 x " + num(height) + " m = " +
+              num(3 * height) + " m) below a void so that the bottom boundary does not alter "
+              "the result (a deeper domain helps)");
+  const double side_need = 3 * std::max(v.depth, height);
+  const std::array<double, 2> half = {sc.domain.width / 2, sc.domain.length / 2};
+  const std::array<std::string, 2> axis = {"x", "y"};
+  double side_gap = std::numeric_limits<double>::infinity();
+  for (std::size_t i = 0; i < 2; ++i)
+    side_gap = std::min({side_gap, half[i] - e.hi[i], e.lo[i] + half[i]});
+  if (side_gap < h) {
+    self.warn("the void is closer to a side of the domain (" + num(side_gap) +
+              " m) than one near-void element size (" + num(h) + " m)");
+    return;
+  }
+  for (std::size_t i = 0; i < 2; ++i)
+    for (const bool high : {false, true}) {
+      const double gap = high ? half[i] - e.hi[i] : e.lo[i] + half[i];
+      if (gap >= side_need) continue;
+      self.warn("the void is " + num(gap) + " m from the side " + axis[i] + " = " +
+                num(high ? half[i] : -half[i]) + " m; common practice keeps at least 3 x " +
+                (v.depth >= height ? "its centre depth (3 x " + num(v.depth)
+                                   : "its height (3 x " + num(height)) +
+                " m = " + num(side_need) + " m) between a void and a side so that the side "
+                "boundary does not alter the result (a larger block helps)");
+    }
 }
 
 YAML::Node load_yaml(const Ctx& ctx, const std::string& text) {
@@ -810,19 +1288,26 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
                                                     "format 1");
   if (auto mf = top.get("model")) {
     const std::string model = mf->choice({"plane-strain", "axisymmetric", "3d"}, "model");
-    if (model == "3d") mf->fail("model '3d' is not supported by this version");
-    sc.model = model == "axisymmetric" ? Model::axisymmetric : Model::plane_strain;
+    sc.model = model == "3d"             ? Model::three_d
+               : model == "axisymmetric" ? Model::axisymmetric
+                                         : Model::plane_strain;
   }
   sc.title = top.has("title") ? top.get("title")->text() : file.stem().string();
   const bool axi = sc.model == Model::axisymmetric;
+  const bool three_d = sc.model == Model::three_d;
 
   // domain
   {
-    const Map dm = top.need("domain", "width and depth in m").map();
+    const Map dm =
+        top.need("domain", three_d ? "width, length and depth in m" : "width and depth in m")
+            .map();
     dm.allow({"width", "depth", "length", "boundaries"});
     sc.domain.width = dm.need("width", "m").positive();
+    if (three_d)
+      sc.domain.length =
+          dm.need("length", "m; y runs from -length/2 to +length/2, required in 3d").positive();
     sc.domain.depth = dm.need("depth", "m").positive();
-    if (auto lf = dm.get("length")) {
+    if (auto lf = dm.get("length"); lf && !three_d) {
       sc.domain.length = lf->positive();
       lf->warn("length is used by 3d models only; ignored");
     }
@@ -896,24 +1381,41 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
   // voids
   std::vector<VoidInput> voids;
   if (auto vf = top.get("voids")) {
-    for (const Field& item : vf->list()) voids.push_back(parse_void(item));
+    for (const Field& item : vf->list()) voids.push_back(parse_void(item, sc.model));
   }
-  for (const auto& in : voids) check_void_in_domain(in, sc);
+  for (const auto& in : voids) {
+    if (three_d)
+      check_void_in_block(in, sc);
+    else
+      check_void_in_domain(in, sc);
+  }
   {
-    const double tol = 1e-9 * std::max(sc.domain.width, sc.domain.depth);
-    std::vector<Shape> shapes;
-    for (const auto& in : voids) shapes.push_back(shape_of(in.v));
-    for (std::size_t j = 0; j < voids.size(); ++j)
-      for (std::size_t i = 0; i < j; ++i)
-        if (shapes_overlap(shapes[i], shapes[j], tol))
-          voids[j].self.fail("voids " + std::to_string(i) + " and " + std::to_string(j) +
-                             " overlap or touch (void " + std::to_string(i) + " starts at line " +
-                             std::to_string(voids[i].v.loc.line) + ")");
+    const double tol =
+        1e-9 * std::max({sc.domain.width, sc.domain.depth, three_d ? sc.domain.length : 0.0});
+    auto overlap = [&](std::size_t i, std::size_t j) {
+      voids[j].self.fail("voids " + std::to_string(i) + " and " + std::to_string(j) +
+                         " overlap or touch (void " + std::to_string(i) + " starts at line " +
+                         std::to_string(voids[i].v.loc.line) + ")");
+    };
+    if (three_d) {
+      std::vector<Solid> solids;
+      for (const auto& in : voids) solids.push_back(solid_of(in.v));
+      for (std::size_t j = 0; j < voids.size(); ++j)
+        for (std::size_t i = 0; i < j; ++i)
+          if (solids_meet(solids[i], solids[j], tol)) overlap(i, j);
+    } else {
+      std::vector<Shape> shapes;
+      for (const auto& in : voids) shapes.push_back(shape_of(in.v));
+      for (std::size_t j = 0; j < voids.size(); ++j)
+        for (std::size_t i = 0; i < j; ++i)
+          if (shapes_overlap(shapes[i], shapes[j], tol)) overlap(i, j);
+    }
   }
   for (const auto& in : voids) {
     const Void& v = in.v;
     if (v.contents == Contents::water && v.water_table_depth) {
-      const double bottom = -bounding_box(shape_of(v)).z_min;
+      const double bottom =
+          three_d ? -extent(solid_of(v)).lo[2] : -bounding_box(shape_of(v)).z_min;
       if (*v.water_table_depth >= bottom)
         warn_at(ctx, in.self.mark(), in.self.path + ".contents.water.table-depth",
                 "the water table lies below the void, which therefore holds no water");
@@ -948,26 +1450,69 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
       const double half = sc.domain.width / 2;
       for (const Field& item : sf->list()) {
         const Map m = item.map();
-        m.allow({"from", "to", "pressure"});
         SurfaceLoad s;
-        const Field from_f = m.need("from", axi ? "m, inner radius" : "m, left end");
-        const Field to_f = m.need("to", axi ? "m, outer radius" : "m, right end");
-        s.from = from_f.number();
-        s.to = to_f.number();
-        s.pressure = m.need("pressure", "Pa, positive pushing down").number();
-        if (!(s.to > s.from))
-          to_f.fail("'to' (" + num(s.to) + " m) must be greater than 'from' (" + num(s.from) +
-                    " m)");
-        if (axi && s.from < 0)
-          from_f.fail("axisymmetric model: 'from' is a radius and must be 0 or more, got " +
-                      num(s.from));
-        if (!axi && s.from < -half)
-          from_f.fail("the load starts at x = " + num(s.from) + " m, outside the domain (x from " +
-                      num(-half) + " to " + num(half) + " m)");
-        if (s.to > half)
-          to_f.fail("the load ends at " + std::string(axi ? "r = " : "x = ") + num(s.to) +
-                    " m, outside the domain (" + (axi ? "r from 0" : "x from " + num(-half)) +
-                    " to " + num(half) + " m)");
+        if (three_d) {
+          for (const char* k : {"from", "to"})
+            if (auto f = m.get(k))
+              fail_at(ctx, f->key_mark, f->path,
+                      "unknown key '" + std::string(k) +
+                          "' (a 3d surface load covers a rectangle: give x: [a, b] and "
+                          "y: [c, d])");
+          m.allow({"x", "y", "pressure"});
+          // One side of the rectangle: [start, end] along `axis`, inside +-half.
+          auto range = [&](const std::string& axis, double half_extent, const std::string& key) {
+            const Field rf = m.need(axis, "[start, end] in m");
+            const auto ends = rf.list();
+            if (ends.size() != 2)
+              rf.fail("expected a range [start, end] in m, found " +
+                      std::to_string(ends.size()) + " values");
+            const double a = ends[0].number(), b = ends[1].number();
+            if (!(b > a))
+              ends[1].fail("the end of the range (" + num(b) + " m) must be greater than its "
+                           "start (" + num(a) + " m)");
+            const std::string inside = " m, outside the block (" + axis + " from " +
+                                       num(-half_extent) + " to " + num(half_extent) + " m, " +
+                                       key + " = " + num(2 * half_extent) + " m)";
+            if (a < -half_extent)
+              ends[0].fail("the load starts at " + axis + " = " + num(a) + inside);
+            if (b > half_extent) ends[1].fail("the load ends at " + axis + " = " + num(b) + inside);
+            return std::array<double, 2>{a, b};
+          };
+          const auto xr = range("x", half, "domain.width");
+          const auto yr = range("y", sc.domain.length / 2, "domain.length");
+          s.from = xr[0];
+          s.to = xr[1];
+          s.y_from = yr[0];
+          s.y_to = yr[1];
+          s.pressure = m.need("pressure", "Pa, positive pushing down").number();
+        } else {
+          for (const char* k : {"x", "y"})
+            if (auto f = m.get(k))
+              fail_at(ctx, f->key_mark, f->path,
+                      "unknown key '" + std::string(k) +
+                          "' (x: [a, b] and y: [c, d] are for 3d models; here give from and "
+                          "to)");
+          m.allow({"from", "to", "pressure"});
+          const Field from_f = m.need("from", axi ? "m, inner radius" : "m, left end");
+          const Field to_f = m.need("to", axi ? "m, outer radius" : "m, right end");
+          s.from = from_f.number();
+          s.to = to_f.number();
+          s.pressure = m.need("pressure", "Pa, positive pushing down").number();
+          if (!(s.to > s.from))
+            to_f.fail("'to' (" + num(s.to) + " m) must be greater than 'from' (" +
+                      num(s.from) + " m)");
+          if (axi && s.from < 0)
+            from_f.fail("axisymmetric model: 'from' is a radius and must be 0 or more, got " +
+                        num(s.from));
+          if (!axi && s.from < -half)
+            from_f.fail("the load starts at x = " + num(s.from) +
+                        " m, outside the domain (x from " + num(-half) + " to " + num(half) +
+                        " m)");
+          if (s.to > half)
+            to_f.fail("the load ends at " + std::string(axi ? "r = " : "x = ") + num(s.to) +
+                      " m, outside the domain (" + (axi ? "r from 0" : "x from " + num(-half)) +
+                      " to " + num(half) + " m)");
+        }
         s.loc = item.loc();
         sc.loads.surface.push_back(s);
         any_load = true;
@@ -989,7 +1534,8 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
           if (other.void_index == g.void_index)
             vf.fail("void " + std::to_string(g.void_index) + " already has a ground loss (" +
                     other.loc.key + ")");
-        const Field pf = m.need("percent", "volume loss in % of the void's area");
+        const Field pf = m.need("percent", three_d ? "volume loss in % of the void's volume"
+                                                   : "volume loss in % of the void's area");
         g.percent = pf.number();
         if (!(g.percent > 0 && g.percent < 100))
           pf.fail("a volume loss must lie between 0 and 100 % (both excluded), got " +
@@ -1050,13 +1596,17 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
     }
     if (auto f = mm.get("surface")) sc.mesh.surface = f->positive();
   }
-  if (sc.mesh.size == 0) sc.mesh.size = std::min(sc.domain.depth, sc.domain.width) / 20;
+  // Defaults. 3d: coarser, since the cell count grows with the cube of 1/size.
+  if (sc.mesh.size == 0)
+    sc.mesh.size = three_d ? std::min({sc.domain.width, sc.domain.length, sc.domain.depth}) / 15
+                           : std::min(sc.domain.depth, sc.domain.width) / 20;
   if (sc.mesh.near_void == 0) {
+    const double per_feature = three_d ? 6 : 8, floor_ratio = three_d ? 100 : 200;
     double smallest = std::numeric_limits<double>::infinity();
-    for (const auto& v : sc.voids) smallest = std::min(smallest, feature_size(v, shape_of(v)));
+    for (const auto& v : sc.voids) smallest = std::min(smallest, feature_size(v));
     sc.mesh.near_void = std::isfinite(smallest)
-                            ? std::max(smallest / 8, sc.mesh.size / 200)
-                            : sc.mesh.size / 8;
+                            ? std::max(smallest / per_feature, sc.mesh.size / floor_ratio)
+                            : sc.mesh.size / per_feature;
   }
   if (sc.mesh.surface == 0) sc.mesh.surface = sc.mesh.size / 3;
   if (near_field && sc.mesh.near_void > sc.mesh.size)
@@ -1065,11 +1615,15 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
 
   // Checks that depend on the mesh sizes: warnings only.
   for (std::size_t i = 0; i < voids.size(); ++i) {
+    if (three_d) {
+      warn_near_boundaries_3d(voids[i], sc);
+      continue;
+    }
     const Void& v = sc.voids[i];
     const Shape s = shape_of(v);
     const Box b = bounding_box(s);
     const double h = sc.mesh.near_void, half = sc.domain.width / 2;
-    const double feature = feature_size(v, s);
+    const double feature = feature_size(v);
     const Field& self = voids[i].self;
     if (h > feature / 4)
       self.warn("the near-void element size " + num(h) + " m is coarse for this void (size " +

@@ -41,9 +41,14 @@ struct Layer {
 enum class Contents { empty, water, pressure };
 
 struct Void {
-  enum class Shape { circle, ellipse, rectangle, polygon };
+  enum class Shape { circle, ellipse, rectangle, polygon, sphere, box, tunnel };
   Shape shape = Shape::circle;
   double x = 0, depth = 0;      ///< centre, m (depth positive down)
+  double y = 0;                 ///< 3d: centre y, m (sphere, box)
+  std::array<double, 3> size{0, 0, 0};  ///< 3d box: edge lengths [lx, ly, lz], m
+  double yaw = 0;               ///< 3d box: rotation about the vertical, degrees anticlockwise from +x
+  std::array<double, 3> from{0, 0, 0};  ///< 3d tunnel: axis start [x, y, depth], m
+  std::array<double, 3> to{0, 0, 0};    ///< 3d tunnel: axis end [x, y, depth], m
   double radius = 0;            ///< circle, m
   std::array<double, 2> axes{0, 0};  ///< ellipse semi-axes, m
   double angle = 0;             ///< ellipse / rectangle rotation, degrees anticlockwise from +x
@@ -57,7 +62,8 @@ struct Void {
 };
 
 struct SurfaceLoad {
-  double from = 0, to = 0;  ///< x range, m (axisymmetric: r range)
+  double from = 0, to = 0;  ///< x range, m (axisymmetric: r range; 3d: the x: [a, b] pair)
+  double y_from = 0, y_to = 0;  ///< 3d: the y: [c, d] pair, m
   double pressure = 0;      ///< Pa, positive pushing down
   SourceLoc loc;
 };

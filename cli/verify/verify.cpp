@@ -14,7 +14,7 @@
 namespace voidsign::cli {
 
 namespace an = solver::analytic;
-using solver::Voigt4;
+using solver::Sym6;
 
 namespace {
 
@@ -59,10 +59,10 @@ int wall_node_at(const mesh::Mesh& m, double cx, double cz, double a, double the
   return best;
 }
 
-// Hoop stress at a wall node from Cartesian total stress.
-double hoop(const Voigt4& s, double theta) {
+// Hoop stress at a wall node from Cartesian total stress (x–z plane).
+double hoop(const Sym6& s, double theta) {
   const double c = std::cos(theta), sn = std::sin(theta);
-  return s[0] * sn * sn + s[1] * c * c - 2 * s[2] * sn * c;
+  return s[0] * sn * sn + s[2] * c * c - 2 * s[5] * sn * c;
 }
 
 struct KirschModel {
@@ -85,7 +85,7 @@ void solve_kirsch(KirschModel& k, double a, double sxx, double szz, double young
   k.problem.layers = {layer(young, nu, 0)};
   k.problem.voids = {solver::VoidLoad{}};
   k.problem.voids[0].cz = -w / 2;
-  k.problem.initial_stress = [sxx, szz, nu](double, double, int) { return Voigt4{sxx, szz, 0, nu * (sxx + szz)}; };
+  k.problem.initial_stress = [sxx, szz, nu](double, double, double, int) { return Sym6{sxx, nu * (sxx + szz), szz, 0, 0, 0}; };
   k.problem.boundaries = {solver::Support::roller, solver::Support::roller, solver::Support::roller};
   k.result = solver::solve_static(k.problem);
 }
@@ -100,7 +100,7 @@ std::vector<VerifyRow> kirsch_uniaxial() {
   for (double deg : {90.0, 0.0}) {
     double th = 0;
     const int n = wall_node_at(k.mesh, 0, -100 * a, a, deg * std::numbers::pi / 180, &th);
-    Voigt4 total = ns[static_cast<std::size_t>(n)];
+    Sym6 total = ns[static_cast<std::size_t>(n)];
     total[0] += S;
     rows.push_back(compare("kirsch-uniaxial", "hoop stress at wall, theta=" + std::to_string(int(deg)) + " deg [Pa]",
                            hoop(total, th), an::kirsch_at(kc, a, th).stt_pa, 0.01, src_kirsch));
@@ -116,9 +116,9 @@ std::vector<VerifyRow> kirsch_hydrostatic() {
   const an::KirschCase kc{a, p, p, an::shear_modulus(E, nu), nu, 0};
   double th = 0;
   const int n = wall_node_at(k.mesh, 0, -100 * a, a, std::numbers::pi / 4, &th);
-  Voigt4 total = ns[static_cast<std::size_t>(n)];
+  Sym6 total = ns[static_cast<std::size_t>(n)];
   total[0] += p;
-  total[1] += p;
+  total[2] += p;
   const double ux = k.result.voided.u[2 * n], uz = k.result.voided.u[2 * n + 1];
   const double ur = ux * std::cos(th) + uz * std::sin(th);
   return {compare("kirsch-hydrostatic", "hoop stress at wall [Pa]", hoop(total, th), an::kirsch_at(kc, a, th).stt_pa, 0.01,
@@ -169,7 +169,7 @@ std::vector<VerifyRow> boussinesq_circle() {
   p.mesh = &m;
   p.kinematics = solver::Kinematics::axisymmetric;
   p.layers = {layer(E, nu, 0)};
-  p.surface = {{0, a, q}};
+  p.surface = {{.from = 0, .to = a, .pressure = q}};
   const auto r = solver::solve_static(p);
   const double uz0 = r.reference.u[2 * m.surface_nodes.front() + 1];
   return {compare("boussinesq-circle", "centre settlement under uniform circular load [m]", uz0,
@@ -208,10 +208,10 @@ std::vector<VerifyRow> lithostatic() {
         if (m.layer[c] != static_cast<int>(L)) continue;
         const auto sh = solver::shape_at(m, c, 1.0 / 3, 1.0 / 3);
         const auto e = an::lithostatic_stress(ref, sh.z);
-        const Voigt4& s = r.reference.stress_total[c];
-        const double ezz = std::abs(s[1] - e.szz_pa) / std::abs(e.szz_pa);
+        const Sym6& s = r.reference.stress_total[c];
+        const double ezz = std::abs(s[2] - e.szz_pa) / std::abs(e.szz_pa);
         const double exx = std::abs(s[0] - e.sxx_pa) / std::abs(e.sxx_pa);
-        if (ezz > err_zz) { err_zz = ezz; worst_zz = s[1]; worst_ref_zz = e.szz_pa; }
+        if (ezz > err_zz) { err_zz = ezz; worst_zz = s[2]; worst_ref_zz = e.szz_pa; }
         if (exx > err_xx) { err_xx = exx; worst_xx = s[0]; worst_ref_xx = e.sxx_pa; }
       }
       const std::string tag = in_situ ? "in-situ k0=0.8" : "gravity switched on, k0=nu/(1-nu)";
@@ -315,9 +315,9 @@ std::pair<double, double> kirsch_l2_error(int order, double h) {
   const auto nd = static_cast<Eigen::Index>(2 * m.n_nodes());
   solver::Vector f = solver::Vector::Zero(nd), gval = solver::Vector::Zero(nd);
   std::vector<char> fixed(static_cast<std::size_t>(nd), 0), touched(m.n_nodes(), 0);
-  const auto sigma0 = [](double, double, const void* ctx) {
+  const auto sigma0 = [](double, double, double, const void* ctx) {
     const double s = *static_cast<const double*>(ctx);
-    return Voigt4{s, s, 0, s};
+    return Sym6{s, s, s, 0, 0, 0};
   };
   for (std::size_t c = 0; c < m.n_cells(); ++c) {
     if (!active[c]) continue;
@@ -353,7 +353,7 @@ std::pair<double, double> kirsch_l2_error(int order, double h) {
   double err2 = 0, area = 0;
   for (std::size_t c = 0; c < m.n_cells(); ++c) {
     if (!active[c]) continue;
-    for (const auto& qp : solver::quadrature(mesh::CellType::tri6, solver::Kinematics::axisymmetric)) {
+    for (const auto& qp : solver::accurate_quadrature(m.type)) {
       const auto sh = solver::shape_at(m, c, qp.r, qp.s);
       double ux = 0, uz = 0;
       for (int q = 0; q < sh.n; ++q) {
@@ -372,7 +372,8 @@ std::pair<double, double> kirsch_l2_error(int order, double h) {
 }
 
 const std::vector<VerifyCase>& verification_cases() {
-  static const std::vector<VerifyCase> cases{
+  static const std::vector<VerifyCase> cases = [] {
+    std::vector<VerifyCase> all{
       {"kirsch-uniaxial", kirsch_uniaxial},
       {"kirsch-hydrostatic", kirsch_hydrostatic},
       {"verruijt-booker", [] { return verruijt_booker_rows(100); }},
@@ -380,7 +381,10 @@ const std::vector<VerifyCase>& verification_cases() {
       {"boussinesq-circle", boussinesq_circle},
       {"lithostatic", lithostatic},
       {"convergence-kirsch", convergence},
-  };
+    };
+    for (VerifyCase& c : verification_cases_3d()) all.push_back(std::move(c));
+    return all;
+  }();
   return cases;
 }
 

@@ -29,6 +29,9 @@ struct VerifyCase {
 /// Every case, in the order `voidsign verify` prints them.
 const std::vector<VerifyCase>& verification_cases();
 
+/// The 3D cases (cli/verify/verify3d.cpp), appended to verification_cases().
+std::vector<VerifyCase> verification_cases_3d();
+
 /// Helper: a row with rel_error filled in.
 VerifyRow compare(std::string case_name, std::string quantity, double computed, double reference, double tol,
                   std::string source);

@@ -2,42 +2,19 @@
 // The 2D mesher on Gmsh's OpenCASCADE kernel: layers and voids are fragmented into one
 // conforming set of faces, so element edges follow every interface and void outline, and the
 // void interiors are meshed too (the reference model fills them with the host material).
-#include <gmsh.h>
-#include <omp.h>
-
 #include <algorithm>
 #include <cmath>
-#include <numbers>
 #include <string>
 
+#include "mesh/build/gmsh_common.hpp"
 #include "mesh/build/mesher.hpp"
 
 namespace voidsign::mesh {
 
 namespace {
 
-// Gmsh resets the OpenMP thread count to 1 in initialize() and leaves it so: restore it.
-class GmshSession {
- public:
-  GmshSession() : threads_(omp_get_max_threads()) {
-    gmsh::initialize(0, nullptr, false);
-    gmsh::option::setNumber("General.Terminal", 0);
-    gmsh::option::setNumber("General.Verbosity", 1);
-    gmsh::model::add("voidsign");
-  }
-  ~GmshSession() {
-    gmsh::finalize();
-    omp_set_num_threads(threads_);
-  }
-  GmshSession(const GmshSession&) = delete;
-  GmshSession& operator=(const GmshSession&) = delete;
-  int threads() const { return threads_; }
-
- private:
-  int threads_;
-};
-
-double deg2rad(double d) { return d * std::numbers::pi / 180.0; }
+using gmsh_detail::deg2rad;
+using gmsh_detail::GmshSession;
 
 int add_void_face(const VoidOutline& v) {
   namespace occ = gmsh::model::occ;
@@ -185,18 +162,15 @@ Mesh build_with_gmsh(const Geometry2D& g) {
 
   // Each resulting face: its layer (from the layer inputs) and its void (from the void inputs).
   std::vector<int> face_layer, face_void;
-  auto note = [](std::vector<int>& v, int tag, int value) {
-    if (static_cast<int>(v.size()) <= tag) v.resize(tag + 1, -1);
-    v[tag] = value;
-  };
+  using gmsh_detail::note_tag;
   for (std::size_t i = 0; i < layers.size(); ++i)
     for (const auto& [dim, tag] : map[i])
-      if (dim == 2) note(face_layer, tag, static_cast<int>(i));
+      if (dim == 2) note_tag(face_layer, tag, static_cast<int>(i));
   gmsh::vectorpair void_faces;
   for (std::size_t k = 0; k < voids.size(); ++k)
     for (const auto& [dim, tag] : map[layers.size() + k])
       if (dim == 2) {
-        note(face_void, tag, static_cast<int>(k));
+        note_tag(face_void, tag, static_cast<int>(k));
         void_faces.push_back({dim, tag});
       }
 
@@ -229,42 +203,9 @@ Mesh build_with_gmsh(const Geometry2D& g) {
   Mesh m;
   m.type = s.order == 2 ? CellType::tri6 : CellType::tri3;
   m.n_voids = static_cast<int>(g.voids.size());
-  std::vector<std::size_t> node_tags;
-  std::vector<double> xyz, param;
-  gmsh::model::mesh::getNodes(node_tags, xyz, param, -1, -1, false, false);
-  std::size_t max_tag = 0;
-  for (auto t : node_tags) max_tag = std::max(max_tag, t);
-  std::vector<int> index(max_tag + 1, -1);
-  std::vector<Point> coords(node_tags.size());
-  for (std::size_t i = 0; i < node_tags.size(); ++i) {
-    index[node_tags[i]] = static_cast<int>(i);
-    coords[i] = {xyz[3 * i], 0.0, xyz[3 * i + 1]};
-  }
-
   const int gmsh_type = s.order == 2 ? 9 : 2;  // 9 = 6-node triangle, 2 = 3-node triangle
-  const int npc = m.npc();
-  std::vector<int> used(node_tags.size(), -1);
-  gmsh::vectorpair faces;
-  gmsh::model::getEntities(faces, 2);
-  for (const auto& [dim, tag] : faces) {
-    std::vector<std::size_t> etags, enodes;
-    gmsh::model::mesh::getElementsByType(gmsh_type, etags, enodes, tag);
-    const int lay = tag < static_cast<int>(face_layer.size()) ? face_layer[tag] : -1;
-    const int vid = tag < static_cast<int>(face_void.size()) ? face_void[tag] : -1;
-    if (lay < 0) throw MeshError("a meshed face belongs to no layer (void outside the block?)");
-    for (std::size_t e = 0; e < etags.size(); ++e) {
-      for (int k = 0; k < npc; ++k) {
-        const int old = index[enodes[e * npc + k]];
-        if (used[old] < 0) {
-          used[old] = static_cast<int>(m.nodes.size());
-          m.nodes.push_back(coords[old]);
-        }
-        m.cells.push_back(used[old]);
-      }
-      m.layer.push_back(lay);
-      m.void_id.push_back(vid);
-    }
-  }
+  gmsh_detail::read_cells(m, 2, gmsh_type, nullptr, face_layer, face_void,
+                          "a meshed face belongs to no layer (void outside the block?)");
   if (m.cells.empty()) throw MeshError("the mesher produced no cells");
   orient_counterclockwise(m);
   finish_topology(m, tol * 10);

@@ -6,6 +6,7 @@
 #include <string>
 
 #include "mesh/build/geometry.hpp"
+#include "mesh/build/geometry3d.hpp"
 #include "mesh/core/mesh.hpp"
 
 namespace voidsign::mesh {
@@ -22,5 +23,12 @@ Mesh build_mesh_2d(const Geometry2D& g);
 /// Rough count of cells the sizing will produce (area integral of 1/h² with the grading),
 /// for memory estimates before meshing.
 double estimate_cells_2d(const Geometry2D& g);
+
+/// The same in 3D: tetrahedra (tet10 for order 2, tet4 for order 1), conforming to layer
+/// interfaces and void surfaces, void interiors meshed and tagged. Calls finish_topology.
+Mesh build_mesh_3d(const Geometry3D& g);
+
+/// Rough count of tetrahedra the sizing will produce, for estimates before meshing.
+double estimate_cells_3d(const Geometry3D& g);
 
 }  // namespace voidsign::mesh

@@ -11,29 +11,34 @@
 
 namespace voidsign::mesh {
 
-/// Cell kinds. Node order follows VTK (= Gmsh): corners first, then edge midpoints
-/// (tri6: 01, 12, 20).
-enum class CellType { tri3, tri6 };
+/// Cell kinds. Node order follows VTK: corners first, then edge midpoints
+/// (tri6: 01, 12, 20; tet10: 01, 12, 20, 03, 13, 23).
+enum class CellType { tri3, tri6, tet4, tet10 };
+
+/// Spatial dimension of a cell type: 2 (triangles, x–z section) or 3 (tetrahedra).
+int dim_of(CellType t);
 
 /// Number of nodes of a cell of this type.
 int nodes_per_cell(CellType t);
-/// Number of nodes of a boundary facet (edge in 2D) of this type: 2 (tri3) or 3 (tri6).
+/// Number of nodes of a boundary facet of this type: an edge in 2D (2 or 3 nodes), a triangle in
+/// 3D (3 or 6 nodes, corners then midsides 01, 12, 20).
 int nodes_per_facet(CellType t);
 /// Polynomial order of the type: 1 or 2.
 int order_of(CellType t);
 
 /// Where a boundary facet lies.
-enum class FacetKind { surface, bottom, left, right, void_wall };
+enum class FacetKind { surface, bottom, left, right, front, back, void_wall };
+// left/right: x = x_min / x_max; front/back: y = y_min / y_max (3D only).
 
 /// A boundary facet of the solid (non-void) part of the mesh.
 struct Facet {
-  std::array<int, 3> nodes{-1, -1, -1};  ///< end nodes, then midside node (tri6 only)
+  std::array<int, 6> nodes{-1, -1, -1, -1, -1, -1};  ///< corners, then midside nodes (quadratic)
   FacetKind kind = FacetKind::surface;
   int cell = -1;     ///< the solid cell the facet belongs to
   int void_id = -1;  ///< for void walls: index of the void on the other side
 };
 
-/// Node coordinates [m]. 2D models use x = [0] and z = [2] (y = [1] = 0); axisymmetric: r = x.
+/// Node coordinates [m]: x, y, z. 2D models use x and z (y = 0); axisymmetric: r = x.
 using Point = std::array<double, 3>;
 
 struct Mesh {
@@ -46,12 +51,13 @@ struct Mesh {
 
   // Derived by finish_topology().
   std::vector<Facet> facets;       ///< boundary facets of the solid part
-  std::vector<int> surface_nodes;  ///< nodes on z = 0, sorted by x
-  double x_min = 0, x_max = 0, z_min = 0, z_max = 0;
+  std::vector<int> surface_nodes;  ///< nodes on z = 0, sorted by x (3D: by x, then y)
+  double x_min = 0, x_max = 0, y_min = 0, y_max = 0, z_min = 0, z_max = 0;
 
   std::size_t n_nodes() const { return nodes.size(); }
   std::size_t n_cells() const { return layer.size(); }
   int npc() const { return nodes_per_cell(type); }
+  int dim() const { return dim_of(type); }
   /// Pointer to the npc() node indices of cell c.
   const int* cell(std::size_t c) const { return cells.data() + c * npc(); }
 };

@@ -86,6 +86,17 @@ std::string failure_reason(unsigned long code, const std::string& first_message)
   return "VTK writer failed";
 }
 
+/// VTK's cell type for ours; Mesh already uses VTK's node order.
+int vtk_cell_type(CellType t) {
+  switch (t) {
+    case CellType::tri3: return VTK_TRIANGLE;
+    case CellType::tri6: return VTK_QUADRATIC_TRIANGLE;
+    case CellType::tet4: return VTK_TETRA;
+    case CellType::tet10: return VTK_QUADRATIC_TETRA;
+  }
+  return VTK_EMPTY_CELL;
+}
+
 }  // namespace
 
 void write_vtu(const std::filesystem::path& path, const Mesh& m,
@@ -154,7 +165,7 @@ void write_vtu(const std::filesystem::path& path, const Mesh& m,
 
   vtkNew<vtkUnstructuredGrid> grid;
   grid->SetPoints(points);
-  grid->SetCells(m.type == CellType::tri6 ? VTK_QUADRATIC_TRIANGLE : VTK_TRIANGLE, cells);
+  grid->SetCells(vtk_cell_type(m.type), cells);
   for (const Field& f : point_fields)
     grid->GetPointData()->AddArray(make_array(f, keep ? &node_rows : nullptr, out_nodes));
   for (const Field& f : cell_fields)

@@ -3,6 +3,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <stdexcept>
 #include <numbers>
 
 namespace voidsign::solver {
@@ -56,6 +57,7 @@ double interpolate(const std::vector<double>& x, const std::vector<double>& y, d
 }  // namespace
 
 std::vector<SurfaceRow> surface_profile(const mesh::Mesh& m, const StaticResult& r, const FarField& ff) {
+  if (m.dim() != 2) throw std::invalid_argument("surface_profile: 2D meshes only (3D: surface_map)");
   std::vector<SurfaceRow> rows;
   rows.reserve(m.surface_nodes.size());
   for (int n : m.surface_nodes) {

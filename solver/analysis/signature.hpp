@@ -22,9 +22,10 @@ struct SurfaceRow {
 struct Anomaly {
   double uz_min = 0, uz_max = 0;      ///< m
   double x_uz_min = 0, x_uz_max = 0;  ///< where, m
-  double ux_absmax = 0, x_ux_absmax = 0;
+  double ux_absmax = 0, x_ux_absmax = 0;  ///< 3D: horizontal magnitude
   double tilt_absmax = 0, x_tilt_absmax = 0;
   double strain_absmax = 0, x_strain_absmax = 0;
+  double y_uz_min = 0, y_uz_max = 0, y_ux_absmax = 0, y_tilt_absmax = 0, y_strain_absmax = 0;  ///< 3D positions, m
   double strain_min = 0, strain_max = 0;  ///< compressive / tensile peaks
   double curvature_absmax = 0;
   double far_field_uz = 0;           ///< Δu_z at the far-field points, m

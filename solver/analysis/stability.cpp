@@ -1,30 +1,26 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
 #include "solver/analysis/stability.hpp"
 
+#include <Eigen/Eigenvalues>
 #include <algorithm>
 #include <cmath>
 #include <limits>
 
 namespace voidsign::solver {
 
-namespace {
-
-// Principal stresses of the in-plane part and the out-of-plane one, sorted descending.
-std::array<double, 3> principals(const Voigt4& s) {
-  const double c = 0.5 * (s[0] + s[1]);
-  const double r = std::hypot(0.5 * (s[0] - s[1]), s[2]);
-  std::array<double, 3> p{c + r, c - r, s[3]};
-  std::sort(p.begin(), p.end(), std::greater<>());
-  return p;
+std::array<double, 3> principal_stresses(const Sym6& s) {
+  // VTK order [xx, yy, zz, xy, yz, xz].
+  Eigen::Matrix3d t;
+  t << s[0], s[3], s[5], s[3], s[1], s[4], s[5], s[4], s[2];
+  const Eigen::Vector3d ev = Eigen::SelfAdjointEigenSolver<Eigen::Matrix3d>(t, Eigen::EigenvaluesOnly).eigenvalues();
+  return {ev[2], ev[1], ev[0]};
 }
 
-}  // namespace
+double max_principal(const Sym6& s) { return principal_stresses(s)[0]; }
 
-double max_principal(const Voigt4& s) { return principals(s)[0]; }
-
-double strength_ratio(const Voigt4& st, double ucs, double tensile) {
+double strength_ratio(const Sym6& st, double ucs, double tensile) {
   if (!(ucs > 0) || std::isnan(st[0])) return std::numeric_limits<double>::quiet_NaN();
-  const auto p = principals(st);
+  const auto p = principal_stresses(st);
   const double s1 = -p[2], s3 = -p[0];  // compression positive, σ1 ≥ σ3
   double ratio = strength_ratio_cap;
   if (s3 < 0) {
@@ -54,7 +50,9 @@ Stability screen_stability(const StaticProblem& p, const StaticResult& r) {
   for (const mesh::Facet& f : m.facets) {
     if (f.kind != mesh::FacetKind::void_wall) continue;
     const VoidLoad& vl = p.voids[static_cast<std::size_t>(f.void_id)];
-    const double zmid = 0.5 * (m.nodes[f.nodes[0]][2] + m.nodes[f.nodes[1]][2]);
+    const int nc = m.dim() == 3 ? 3 : 2;
+    double zmid = 0;
+    for (int a = 0; a < nc; ++a) zmid += m.nodes[f.nodes[a]][2] / nc;
     if (zmid <= vl.cz) continue;
     VoidStability& vs = out.voids[static_cast<std::size_t>(f.void_id)];
     const auto c = static_cast<std::size_t>(f.cell);

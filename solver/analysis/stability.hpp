@@ -16,12 +16,14 @@ namespace voidsign::solver {
 /// Largest strength ratio reported (an unloaded element is "very safe", not infinite).
 inline constexpr double strength_ratio_cap = 100.0;
 
-/// Strength ratio for one stress state [Pa, tension positive, 4-component layout]; NaN when
+/// Strength ratio for one stress state [Pa, tension positive]; NaN when
 /// the material has no UCS.
-double strength_ratio(const Voigt4& stress_total, double ucs, double tensile);
+double strength_ratio(const Sym6& stress_total, double ucs, double tensile);
 
-/// Largest principal stress (tension positive) of a 4-component stress [Pa].
-double max_principal(const Voigt4& s);
+/// Principal stresses, descending (tension positive) [Pa].
+std::array<double, 3> principal_stresses(const Sym6& s);
+/// Largest principal stress (tension positive) [Pa].
+double max_principal(const Sym6& s);
 
 struct VoidStability {
   double min_strength_ratio = strength_ratio_cap;  ///< over the void's roof cells

@@ -14,6 +14,7 @@
 #include "solver/assembly/system.hpp"
 #include "solver/fe/constants.hpp"
 #include "solver/fe/element.hpp"
+#include "solver/la/spd_solver.hpp"
 
 namespace voidsign::solver {
 
@@ -34,24 +35,28 @@ struct VoidLoad {
   /// Ground loss: the wall may translate so that it carries no net force (true, the physical
   /// case), or its centre is held (false: only for demonstrating the difference).
   bool wall_free = true;
-  double cx = 0, cz = 0;      ///< centre the wall contracts about [m]
+  double cx = 0, cy = 0, cz = 0;  ///< centre the wall contracts about [m]
+  /// Unit axis of a tunnel: ground loss then contracts the wall toward the axis line, not
+  /// toward the centre point. Zero = contraction toward the point (2D, spheres, boxes).
+  std::array<double, 3> axis{0, 0, 0};
 };
 
 struct SurfacePressure {
-  double from = 0, to = 0;  ///< x (or r) range [m]
-  double pressure = 0;      ///< Pa, positive pushing down
+  double from = 0, to = 0;      ///< x (or r) range [m]
+  double y_from = 0, y_to = 0;  ///< y range [m], 3D only
+  double pressure = 0;          ///< Pa, positive pushing down
 };
 
 enum class Support { free, roller, fixed };
 
 struct Boundaries {
-  Support sides = Support::roller;   ///< x = x_max, and x = x_min in plane strain
+  Support sides = Support::roller;   ///< vertical faces (2D: x = x_max, and x = x_min in plane strain)
   Support bottom = Support::fixed;
   Support top = Support::free;       ///< the ground surface; roller only for plate benchmarks
 };
 
 /// Initial (in-situ) stress at a point of a cell of layer `layer` [Pa, tension positive].
-using InitialStress = std::function<Voigt4(double x, double z, int layer)>;
+using InitialStress = std::function<Sym6(double x, double y, double z, int layer)>;
 
 struct StaticProblem {
   const mesh::Mesh* mesh = nullptr;
@@ -63,23 +68,24 @@ struct StaticProblem {
   std::vector<SurfacePressure> surface;
   Boundaries boundaries;
   double gravity = standard_gravity;
+  SolverChoice solver = SolverChoice::automatic;
 };
 
-/// Geostatic in-situ stress of a layered half-space: σ_zz = −g ∫ρ dz, σ_xx = σ_out = k0 σ_zz.
+/// Geostatic in-situ stress of a layered half-space: σ_zz = −g ∫ρ dz, σ_xx = σ_yy = k0 σ_zz.
 /// `layer_bottom_z` gives each layer's bottom (top down; the last is ignored).
 InitialStress geostatic_stress(std::vector<double> layer_bottom_z, std::vector<double> density,
                                std::vector<double> k0, double gravity = standard_gravity);
 
 /// One solved model.
 struct ModelSolution {
-  Vector u;                            ///< nodal displacements, [ux0, uz0, ux1, …] m
+  Vector u;                            ///< nodal displacements, m: [ux0, uz0, ux1, …] (3D: ux, uy, uz)
   double residual = 0;                 ///< ‖Ku − f‖/‖f‖
   double load_norm = 0;                ///< ‖f‖ (N, or N/rad axisymmetric)
   std::vector<char> active;            ///< per cell: part of this model
-  std::vector<Voigt4> strain;          ///< per cell, at the centroid
-  std::vector<Voigt4> stress;          ///< induced, per cell, Pa
-  std::vector<Voigt4> stress_total;    ///< in-situ + induced, per cell, Pa
-  std::vector<std::array<double, 2>> wall_translation;  ///< per void with ground loss [m]
+  std::vector<Sym6> strain;            ///< per cell, at the centroid
+  std::vector<Sym6> stress;            ///< induced, per cell, Pa
+  std::vector<Sym6> stress_total;      ///< in-situ + induced, per cell, Pa
+  std::vector<std::array<double, 3>> wall_translation;  ///< per void with ground loss (x, y, z) [m]
 };
 
 struct StaticTimings {
@@ -91,6 +97,8 @@ struct StaticResult {
   ModelSolution voided;     ///< with voids
   StaticTimings timings;
   double factor_nonzeros = 0;
+  std::string solver;   ///< the linear solver used
+  int iterations = 0;   ///< conjugate-gradient iterations over all solves (0 for direct)
 };
 
 /// Progress: step name and fraction done in [0, 1].
@@ -110,6 +118,9 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress = {})
 
 /// Stresses at the nodes [Pa], averaged over the active cells that share each node (each cell's
 /// field evaluated at the node itself). Induced stress; add σ₀ for the total.
-std::vector<Voigt4> nodal_stress(const StaticProblem& p, const ModelSolution& s);
+std::vector<Sym6> nodal_stress(const StaticProblem& p, const ModelSolution& s);
+
+/// Displacement (x, y, z) of node n from a solution vector in the problem's dof layout.
+std::array<double, 3> node_displacement(const StaticProblem& p, const Vector& u, std::size_t n);
 
 }  // namespace voidsign::solver

@@ -45,32 +45,30 @@ SparseMatrix stiffness_pattern(const mesh::Mesh& m) {
   std::vector<int> start, adj;
   node_graph(m, start, adj);
   const int nn = static_cast<int>(m.n_nodes());
-  const int nd = 2 * nn;
-  // Column 2a+i holds rows 2b+j >= 2a+i for every neighbour b >= a.
-  std::vector<int> outer(nd + 1, 0);
+  const int d = m.dim() == 3 ? 3 : 2;
+  const int nd = d * nn;
+  // Column d·a+i holds rows d·a+j (j >= i), then d·b+j for every neighbour b > a.
+  std::vector<int> outer(static_cast<std::size_t>(nd) + 1, 0);
   for (int a = 0; a < nn; ++a) {
     int above = 0;
     for (int p = start[a]; p < start[a + 1]; ++p)
       if (adj[p] > a) ++above;
-    outer[2 * a + 1] = outer[2 * a] + 2 + 2 * above;
-    outer[2 * a + 2] = outer[2 * a + 1] + 1 + 2 * above;
+    for (int i = 0; i < d; ++i) outer[d * a + i + 1] = outer[d * a + i] + (d - i) + d * above;
   }
   SparseMatrix k(nd, nd);
   k.resizeNonZeros(outer[nd]);
   std::copy(outer.begin(), outer.end(), k.outerIndexPtr());
   int* rows = k.innerIndexPtr();
+#pragma omp parallel for schedule(static)
   for (int a = 0; a < nn; ++a) {
-    int p0 = outer[2 * a], p1 = outer[2 * a + 1];
-    rows[p0++] = 2 * a;
-    rows[p0++] = 2 * a + 1;
-    rows[p1++] = 2 * a + 1;
-    for (int p = start[a]; p < start[a + 1]; ++p) {
-      const int b = adj[p];
-      if (b <= a) continue;
-      rows[p0++] = 2 * b;
-      rows[p0++] = 2 * b + 1;
-      rows[p1++] = 2 * b;
-      rows[p1++] = 2 * b + 1;
+    for (int i = 0; i < d; ++i) {
+      int p0 = outer[d * a + i];
+      for (int j = i; j < d; ++j) rows[p0++] = d * a + j;
+      for (int p = start[a]; p < start[a + 1]; ++p) {
+        const int b = adj[p];
+        if (b <= a) continue;
+        for (int j = 0; j < d; ++j) rows[p0++] = d * b + j;
+      }
     }
   }
   std::fill(k.valuePtr(), k.valuePtr() + k.nonZeros(), 0.0);
@@ -81,7 +79,8 @@ void assemble_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<c
                         const std::function<const Elastic&(std::size_t)>& material_of, SparseMatrix& k) {
   std::fill(k.valuePtr(), k.valuePtr() + k.nonZeros(), 0.0);
   const int npc = m.npc();
-  const int nd = 2 * npc;
+  const int d = dofs_per_node(kin);
+  const int nd = d * npc;
   const long nc = static_cast<long>(m.n_cells());
   const int* outer = k.outerIndexPtr();
   const int* rows = k.innerIndexPtr();
@@ -89,17 +88,15 @@ void assemble_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<c
 #pragma omp parallel
   {
     std::vector<double> ke(static_cast<std::size_t>(nd * nd));
-    int dof[12];
+    int dof[3 * max_cell_nodes];
 #pragma omp for schedule(dynamic, 512)
     for (long c = 0; c < nc; ++c) {
       if (!active[c]) continue;
       const auto cu = static_cast<std::size_t>(c);
       stiffness(m, cu, material_of(cu), kin, ke);
       const int* v = m.cell(cu);
-      for (int a = 0; a < npc; ++a) {
-        dof[2 * a] = 2 * v[a];
-        dof[2 * a + 1] = 2 * v[a] + 1;
-      }
+      for (int a = 0; a < npc; ++a)
+        for (int j = 0; j < d; ++j) dof[d * a + j] = d * v[a] + j;
       for (int q = 0; q < nd; ++q) {
         const int col = dof[q];
         const int* b = rows + outer[col];

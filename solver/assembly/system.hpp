@@ -2,7 +2,7 @@
 #pragma once
 /// Sparse assembly into a fixed pattern, and constraints that keep that pattern.
 ///
-/// Two unknowns per node: dof 2i = u_x, 2i+1 = u_z. The stiffness is stored as its lower
+/// d unknowns per node, interleaved: d = 2 in 2D (u_x, u_z), 3 in 3D (u_x, u_y, u_z). The stiffness is stored as its lower
 /// triangle (column-major), the layout CHOLMOD factorises. The pattern is built once from
 /// *all* cells, void interiors included, so the models with and without voids share it (and
 /// the symbolic factorisation); a cell left out of an assembly simply contributes zeros.
@@ -18,7 +18,7 @@ namespace voidsign::solver {
 using SparseMatrix = Eigen::SparseMatrix<double, Eigen::ColMajor, int>;
 using Vector = Eigen::VectorXd;
 
-/// Lower-triangle pattern of the 2-dof-per-node stiffness over every cell of `m`,
+/// Lower-triangle pattern of the d-dof-per-node stiffness over every cell of `m`,
 /// with explicit zeros as values.
 SparseMatrix stiffness_pattern(const mesh::Mesh& m);
 

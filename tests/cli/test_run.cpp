@@ -153,11 +153,21 @@ TEST_CASE("a mesh too large for the machine is refused before allocating") {
 }
 
 TEST_CASE("the demo scenarios run") {
-  for (const char* name : {"chalk-gallery.yaml", "karst-cave.yaml"}) {
+  for (const std::string name : {"chalk-gallery.yaml", "karst-cave.yaml", "gallery-under-road-3d.yaml"}) {
     const fs::path d = temp_dir("demo");
     Cmd c = run(std::string("run ") + VOIDSIGN_SOURCE_DIR + "/scenarios/" + name + " --out " + (d / "o").string());
     INFO(c.out);
     CHECK(c.rc == 0);
+    if (name.find("3d") != std::string::npos) {
+      // The 3D map: surface.csv with the contract's 3D columns, surface.vtu for ParaView.
+      CHECK(fs::exists(d / "o/static/surface.vtu"));
+      CHECK(read(d / "o/static/surface.csv").find("x,y,ux,uy,uz,ux_ref,uy_ref,uz_ref,dux,duy,duz,tilt_x,tilt_y") != std::string::npos);
+      const auto j = nlohmann::json::parse(read(d / "o/summary.json"));
+      CHECK(j["model"] == "3d");
+      CHECK(j["mesh"]["dofs"].get<long>() == 3 * j["mesh"]["nodes"].get<long>());
+      CHECK(j["static"]["residual"].get<double>() < 1e-8);
+      CHECK(j["static"]["anomaly"]["uz_min"].get<double>() < 0);
+    }
     fs::remove_all(d);
   }
 }

@@ -709,7 +709,8 @@ TEST_CASE("axisymmetric model") {
 }
 
 TEST_CASE("model and format") {
-  expect_error(k_head + "model: 3d\n", "3d", "model", "model '3d' is not supported by this version");
+  // A 3d model needs the block's length along y.
+  expect_error(k_head + "model: 3d\n", "{width", "domain.length", "required in 3d");
   expect_error(with_voids("  - {shape: sphere, x: 0, depth: 15, radius: 2}\n"), "sphere",
                "voids.0.shape", "3d models");
   const std::string two = "format: 2\ndomain: {width: 100, depth: 50}\nlayers:\n  - {material: chalk}\n";
@@ -829,4 +830,531 @@ output:
   CHECK(sc.mesh.near_void == 0.25);
   CHECK(sc.output_dir == std::filesystem::path("/tmp/voidsign-test/results/gallery"));
   CHECK(sc.warnings.size() == 6);  // length, four analyses, sensors
+}
+
+// ---------------------------------------------------------------------------------------------
+// 3d models
+
+namespace {
+
+// A 100 m × 80 m × 50 m block (x ±50, y ±40): a valid start for most 3d cases (6 lines).
+const std::string k_head_3d =
+    "format: 1\n"
+    "model: 3d\n"
+    "domain: {width: 100, length: 80, depth: 50}\n"
+    "layers:\n"
+    "  - {material: chalk, thickness: 10}\n"
+    "  - {material: limestone-strong}\n";
+
+std::string with_voids_3d(const std::string& items) { return k_head_3d + "voids:\n" + items; }
+
+void expect_accepted(const std::string& yaml) {
+  INFO("yaml:\n" << yaml);
+  CHECK(error_of(yaml) == "(accepted without error)");
+}
+
+void expect_overlap(const std::string& items, const std::string& token, const std::string& key,
+                    const std::string& pair) {
+  expect_error(with_voids_3d(items), token, key, "voids " + pair + " overlap or touch");
+}
+
+}  // namespace
+
+TEST_CASE("3d: a full valid scenario parses to the expected values") {
+  const std::string yaml = R"(format: 1
+title: Invented brickfield with three cavities
+model: 3d
+domain:
+  width: 240
+  length: 200
+  depth: 60
+  boundaries: {sides: fixed, bottom: roller}
+materials:
+  brick-clay:
+    density: 1950
+    young: 6.0e7
+    poisson: 0.35
+layers:
+  - {material: brick-clay, thickness: 4}
+  - {material: chalk, thickness: 30}
+  - {material: limestone}
+voids:
+  - {shape: sphere, x: -40, y: 20, depth: 12, radius: 3, contents: {water: {table-depth: 10}}}
+  - {shape: box, x: 30, y: -10, depth: 15, size: [8, 4, 3], yaw: 30, contents: water}
+  - {shape: tunnel, from: [-20, -25, 18], to: [10, 35, 22], radius: 2.5, contents: {pressure: 1.0e5}}
+loads:
+  gravity: {k0: auto}
+  surface:
+    - {x: [-10, 10], y: [-5, 5], pressure: 40.0e3}
+    - {x: [-120, 0], y: [0, 100], pressure: -1.5e3}
+  ground-loss:
+    - {void: 2, percent: 0.8}
+analyses:
+  static: {}
+mesh: {order: 1}
+)";
+  const Scenario sc = parse_scenario(yaml, "/tmp/voidsign-test/brickfield.yaml");
+  INFO("warnings: " << sc.warnings.size() << (sc.warnings.empty() ? "" : sc.warnings[0]));
+  CHECK(sc.warnings.empty());
+  CHECK(sc.model == Model::three_d);
+  CHECK(sc.title == "Invented brickfield with three cavities");
+  CHECK(sc.domain.width == 240);
+  CHECK(sc.domain.length == 200);
+  CHECK(sc.domain.depth == 60);
+  CHECK(sc.domain.sides == Boundary::fixed);
+  CHECK(sc.domain.bottom == Boundary::roller);
+  REQUIRE(sc.layers.size() == 3);
+  CHECK(sc.materials.at("brick-clay").young == 6.0e7);
+
+  REQUIRE(sc.voids.size() == 3);
+  const Void& s = sc.voids[0];
+  CHECK(s.shape == Void::Shape::sphere);
+  CHECK(s.x == -40);
+  CHECK(s.y == 20);
+  CHECK(s.depth == 12);
+  CHECK(s.radius == 3);
+  CHECK(s.contents == Contents::water);
+  CHECK(s.water_table_depth == 10);
+  CHECK(s.loc.line == 19);
+  CHECK(s.loc.column == 5);
+  CHECK(s.loc.key == "voids.0");
+  const Void& b = sc.voids[1];
+  CHECK(b.shape == Void::Shape::box);
+  CHECK(b.x == 30);
+  CHECK(b.y == -10);
+  CHECK(b.depth == 15);
+  CHECK(b.size == std::array<double, 3>{8, 4, 3});
+  CHECK(b.yaw == 30);
+  CHECK(b.contents == Contents::water);
+  CHECK_FALSE(b.water_table_depth.has_value());
+  const Void& t = sc.voids[2];
+  CHECK(t.shape == Void::Shape::tunnel);
+  CHECK(t.from == std::array<double, 3>{-20, -25, 18});
+  CHECK(t.to == std::array<double, 3>{10, 35, 22});
+  CHECK(t.radius == 2.5);
+  CHECK(t.x == -5);  // the centre is the midpoint of the axis
+  CHECK(t.y == 5);
+  CHECK(t.depth == 20);
+  CHECK(t.contents == Contents::pressure);
+  CHECK(t.pressure == 1.0e5);
+  CHECK(t.loc.key == "voids.2");
+
+  CHECK(sc.loads.gravity);
+  CHECK_FALSE(sc.loads.k0.has_value());
+  REQUIRE(sc.loads.surface.size() == 2);
+  CHECK(sc.loads.surface[0].from == -10);
+  CHECK(sc.loads.surface[0].to == 10);
+  CHECK(sc.loads.surface[0].y_from == -5);
+  CHECK(sc.loads.surface[0].y_to == 5);
+  CHECK(sc.loads.surface[0].pressure == 40.0e3);
+  CHECK(sc.loads.surface[1].from == -120);  // a load may reach the block's edges
+  CHECK(sc.loads.surface[1].y_to == 100);
+  CHECK(sc.loads.surface[1].pressure == -1.5e3);
+  CHECK(sc.loads.surface[1].loc.line == 26);
+  REQUIRE(sc.loads.ground_loss.size() == 1);
+  CHECK(sc.loads.ground_loss[0].void_index == 2);
+  CHECK(sc.loads.ground_loss[0].percent == 0.8);
+
+  // Mesh defaults in 3d: size min(240, 200, 60)/15; near-void the smallest void size (half
+  // the box's 3 m edge) / 6; surface size/3.
+  CHECK(sc.mesh.order == 1);
+  CHECK(sc.mesh.size == doctest::Approx(4));
+  CHECK(sc.mesh.near_void == doctest::Approx(1.5 / 6));
+  CHECK(sc.mesh.surface == doctest::Approx(4.0 / 3));
+}
+
+TEST_CASE("3d: mesh defaults") {
+  const Scenario sc =
+      parse_scenario(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 15, radius: 2}\n"), k_file);
+  CHECK(sc.mesh.size == doctest::Approx(50.0 / 15));
+  CHECK(sc.mesh.near_void == doctest::Approx(2.0 / 6));
+  CHECK(sc.mesh.surface == doctest::Approx(50.0 / 45));
+  // At least size/100.
+  const Scenario tiny =
+      parse_scenario(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 15, radius: 0.1}\n"), k_file);
+  CHECK(tiny.mesh.near_void == doctest::Approx(50.0 / 15 / 100));
+  // Tunnel: its radius; box: half its smallest edge.
+  const Scenario two = parse_scenario(
+      with_voids_3d("  - {shape: tunnel, from: [-10, 0, 15], to: [10, 0, 15], radius: 1.8}\n"
+                    "  - {shape: box, x: 0, y: 20, depth: 15, size: [6, 4, 3]}\n"),
+      k_file);
+  CHECK(two.mesh.near_void == doctest::Approx(1.5 / 6));
+  // Without voids.
+  const Scenario none = parse_scenario(k_head_3d, k_file);
+  CHECK(none.mesh.near_void == doctest::Approx(50.0 / 15 / 6));
+  // Explicit values win.
+  const Scenario given = parse_scenario(
+      with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 15, radius: 2}\n") +
+          "mesh: {size: 5, near-void: 0.4, surface: 2}\n",
+      k_file);
+  CHECK(given.mesh.size == 5);
+  CHECK(given.mesh.near_void == 0.4);
+  CHECK(given.mesh.surface == 2);
+}
+
+TEST_CASE("3d: domain, shapes and keys") {
+  expect_error("format: 1\nmodel: 3d\ndomain: {width: 100, depth: 50}\nlayers:\n"
+               "  - {material: chalk}\n",
+               "{width", "domain.length", "required key is missing");
+  expect_error("format: 1\nmodel: 3d\ndomain: {width: 100, length: -80, depth: 50}\nlayers:\n"
+               "  - {material: chalk}\n",
+               "-80", "domain.length", "must be greater than 0");
+  // 2D shapes in 3d and 3d shapes in 2D say which model they belong to.
+  expect_error(with_voids_3d("  - {shape: circle, x: 0, depth: 15, radius: 2}\n"), "circle",
+               "voids.0.shape", "'circle' belongs to the 2D models (plane-strain, axisymmetric)");
+  expect_error(with_voids_3d("  - {shape: polygon, points: [[0, 10], [4, 10], [4, 14]]}\n"),
+               "polygon", "voids.0.shape", "a 3d model takes sphere, box or tunnel");
+  expect_error(with_voids("  - {shape: box, x: 0, y: 0, depth: 15, size: [2, 2, 2]}\n"), "box",
+               "voids.0.shape", "'box' belongs to 3d models; this scenario's model is plane-strain");
+  expect_error("format: 1\nmodel: axisymmetric\ndomain: {width: 40, depth: 50}\nlayers:\n"
+               "  - {material: chalk}\nvoids:\n"
+               "  - {shape: tunnel, from: [0, 0, 10], to: [0, 5, 10], radius: 1}\n",
+               "tunnel", "voids.0.shape", "belongs to 3d models; this scenario's model is axisymmetric");
+  expect_error(with_voids_3d("  - {shape: cube, x: 0, y: 0, depth: 15}\n"), "cube",
+               "voids.0.shape", "unknown shape 'cube'");
+  // Keys of each shape.
+  expect_error(with_voids_3d("  - {shape: sphere, x: 0, depth: 15, radius: 2}\n"), "{shape",
+               "voids.0.y", "required key is missing");
+  expect_error(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 15, radius: 2, yaw: 10}\n"),
+               "yaw", "voids.0.yaw", "unknown key 'yaw'");
+  expect_error(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 15, size: [2, 2, 2], angle: 10}\n"),
+               "angle", "voids.0.angle", "unknown key 'angle'");
+  expect_error(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 15}\n"), "{shape",
+               "voids.0.size", "required key is missing");
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [0, 0, 10], radius: 1}\n"), "{shape",
+               "voids.0.to", "required key is missing");
+  expect_error(with_voids_3d("  - {shape: tunnel, x: 0, from: [0, 0, 10], to: [0, 5, 10], radius: 1}\n"),
+               "x:", "voids.0.x", "unknown key 'x'");
+  expect_error(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 15, size: [2, 2, 2], yaw: east}\n"),
+               "east", "voids.0.yaw", "expected a number");
+}
+
+TEST_CASE("3d: sizes, radii and tunnel length") {
+  expect_error(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 15, radius: -1}\n"), "-1",
+               "voids.0.radius", "must be greater than 0");
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [0, 0, 10], to: [0, 5, 10], radius: 0}\n"),
+               "0}", "voids.0.radius", "must be greater than 0");
+  expect_error(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 15, size: [4, 0, 2]}\n"), "0, 2]",
+               "voids.0.size.1", "must be greater than 0");
+  expect_error(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 15, size: [4, 2, -2]}\n"), "-2]",
+               "voids.0.size.2", "must be greater than 0");
+  expect_error(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 15, size: [4, 2]}\n"), "[4",
+               "voids.0.size", "expected three edge lengths [lx, ly, lz], found 2 values");
+  expect_error(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 15, size: 4}\n"), "4}",
+               "voids.0.size", "expected a list");
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [0, 0, 15], to: [0, 0, 15], radius: 2}\n"),
+               "[0, 0, 15]", "voids.0.to", "the tunnel has zero length");
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [0, 0], to: [0, 5, 15], radius: 2}\n"),
+               "[0, 0]", "voids.0.from", "expected a point [x, y, depth], found 2 values");
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [0, 0, deep], to: [0, 5, 15], radius: 2}\n"),
+               "deep", "voids.0.from.2", "expected a number");
+}
+
+TEST_CASE("3d: voids leaving the block say through which face and by how much") {
+  // Sphere: x sides, y sides, bottom.
+  expect_error(with_voids_3d("  - {shape: sphere, x: 49, y: 0, depth: 15, radius: 2}\n"), "49",
+               "voids.0.x",
+               "the sphere leaves the block through the side x = 50 m: it reaches x = 51 m, "
+               "1 m beyond it (domain.width = 100 m)");
+  expect_error(with_voids_3d("  - {shape: sphere, x: -48, y: 0, depth: 15, radius: 2}\n"), "-48",
+               "voids.0.x", "through the side x = -50 m: it reaches x = -50 m, on it");
+  expect_error(with_voids_3d("  - {shape: sphere, x: 0, y: -39, depth: 15, radius: 2}\n"), "-39",
+               "voids.0.y",
+               "through the side y = -40 m: it reaches y = -41 m, 1 m beyond it "
+               "(domain.length = 80 m)");
+  expect_error(with_voids_3d("  - {shape: sphere, x: 0, y: 38.5, depth: 15, radius: 2}\n"), "38.5",
+               "voids.0.y", "through the side y = 40 m: it reaches y = 40.5 m, 0.5 m beyond it");
+  expect_error(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 49, radius: 2}\n"), "49",
+               "voids.0.depth",
+               "the sphere leaves the block through the bottom: it reaches depth 51 m, 1 m below "
+               "it (domain.depth = 50 m)");
+  // Box: the yaw turns its long side towards x = 50.
+  expect_accepted(with_voids_3d("  - {shape: box, x: 46, y: 0, depth: 15, size: [1, 10, 2]}\n"));
+  expect_error(with_voids_3d("  - {shape: box, x: 46, y: 0, depth: 15, size: [1, 10, 2], yaw: 90}\n"),
+               "46", "voids.0.x", "the box leaves the block through the side x = 50 m: it reaches "
+                                  "x = 51 m, 1 m beyond it");
+  // A 10 m square at x = 44 fits square on; turned by 45 degrees its corner reaches 51.07 m.
+  expect_accepted(with_voids_3d("  - {shape: box, x: 44, y: 0, depth: 15, size: [10, 10, 2]}\n"));
+  expect_error(with_voids_3d("  - {shape: box, x: 44, y: 0, depth: 15, size: [10, 10, 2], yaw: 45}\n"),
+               "44", "voids.0.x", "it reaches x = 51.0711 m, 1.07107 m beyond it");
+  expect_error(with_voids_3d("  - {shape: box, x: 0, y: -35, depth: 15, size: [2, 10, 2], yaw: 180}\n"),
+               "-35", "voids.0.y", "through the side y = -40 m: it reaches y = -40 m, on it");
+  expect_error(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 48, size: [2, 2, 6]}\n"), "48",
+               "voids.0.depth", "through the bottom: it reaches depth 51 m, 1 m below it");
+  // Tunnel: the message points at the end that leaves the block.
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [0, -20, 15], to: [0, 41, 15], radius: 2}\n"),
+               "41", "voids.0.to.1",
+               "the tunnel leaves the block through the side y = 40 m, at its 'to' end: it "
+               "reaches y = 41 m, 1 m beyond it");
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [-52, 0, 15], to: [0, 0, 15], radius: 2}\n"),
+               "-52", "voids.0.from.0", "side x = -50 m, at its 'from' end: it reaches x = -52 m, 2 m");
+  // Running along y at x = 49, its wall reaches x = 51 along its whole length.
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [49, -20, 15], to: [49, 20, 15], radius: 2}\n"),
+               "49", "voids.0.from.0", "side x = 50 m, along its whole length: it reaches x = 51 m", 0);
+  // A shaft down to 49 m: its flat end stops short of the bottom, its wall does not matter.
+  expect_accepted(with_voids_3d("  - {shape: tunnel, from: [0, 0, 20], to: [0, 0, 49], radius: 2}\n"));
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [0, 0, 20], to: [0, 0, 50.5], radius: 2}\n"),
+               "50.5", "voids.0.to.2",
+               "through the bottom, at its 'to' end: it reaches depth 50.5 m, 0.5 m below it");
+}
+
+TEST_CASE("3d: voids breaking the surface") {
+  expect_error(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 1.5, radius: 2}\n"), "1.5",
+               "voids.0.depth",
+               "the sphere breaks the ground surface: its top is at depth -0.5 m, 0.5 m above "
+               "the surface");
+  expect_error(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 2, radius: 2}\n"), "2,",
+               "voids.0.depth", "its top is at depth 0 m, on the surface");
+  // Box: the yaw turns it about the vertical and leaves its top where it is.
+  expect_error(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 0.9, size: [8, 1, 2], yaw: 45}\n"),
+               "0.9", "voids.0.depth", "the box breaks the ground surface: its top is at depth -0.1 m");
+  expect_accepted(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 1.1, size: [8, 1, 2], yaw: 45}\n"));
+  // A plunging tunnel whose upper end rises above z = 0.
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [0, -20, 15], to: [0, 10, -1], radius: 1}\n"),
+               "-1]", "voids.0.to.2", "the tunnel breaks the ground surface, at its 'to' end");
+  // A level tunnel whose wall, a radius above its axis, breaks through.
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [-20, 0, 1.5], to: [20, 0, 1.5], radius: 2}\n"),
+               "1.5]", "voids.0.from.2",
+               "breaks the ground surface, along its whole length: its top is at depth -0.5 m, "
+               "0.5 m above the surface", 0);
+  // An inclined tunnel: the top of its flat end disc is r·sqrt(1 - dz²) above the axis end, less
+  // than the radius. Axis from depth 1.9 to 19.7 over 40 m: the disc rises 1.827 m, top 0.073 m.
+  expect_accepted(with_voids_3d("  - {shape: tunnel, from: [0, -20, 1.9], to: [0, 20, 19.7], radius: 2}\n"));
+  const double dz = 17.9 / std::hypot(40.0, 17.9);
+  const double top = 1.8 - 2 * std::sqrt(1 - dz * dz);
+  REQUIRE(top < 0);
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [0, -20, 1.8], to: [0, 20, 19.7], radius: 2}\n"),
+               "1.8", "voids.0.from.2",
+               "breaks the ground surface, at its 'from' end: its top is at depth -0.0255");
+  // A vertical shaft ends flat: its top is the end's depth.
+  expect_accepted(with_voids_3d("  - {shape: tunnel, from: [0, 0, 0.5], to: [0, 0, 20], radius: 2}\n"));
+  expect_error(with_voids_3d("  - {shape: tunnel, from: [0, 0, 0], to: [0, 0, 20], radius: 2}\n"),
+               "0]", "voids.0.from.2", "on the surface", 0);
+}
+
+TEST_CASE("3d: overlapping voids name the two") {
+  // sphere-sphere: centres 3 m apart, radii 2 + 1.5.
+  expect_overlap("  - {shape: sphere, x: 0, y: 0, depth: 15, radius: 2}\n"
+                 "  - {shape: sphere, x: 3, y: 0, depth: 15, radius: 1.5}\n",
+                 "{shape: sphere, x: 3", "voids.1", "0 and 1");
+  // Extents overlap, the spheres do not (4.06 m apart).
+  expect_accepted(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 15, radius: 2}\n"
+                                "  - {shape: sphere, x: 2.5, y: 2.5, depth: 17, radius: 1.5}\n"));
+  // sphere-box off a vertical edge of a 4 m cube: 1.697 m from the edge.
+  expect_accepted(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 15, size: [4, 4, 4]}\n"
+                                "  - {shape: sphere, x: 3.2, y: 3.2, depth: 15, radius: 1.6}\n"));
+  expect_overlap("  - {shape: box, x: 0, y: 0, depth: 15, size: [4, 4, 4]}\n"
+                 "  - {shape: sphere, x: 3.2, y: 3.2, depth: 15, radius: 1.8}\n",
+                 "{shape: sphere", "voids.1", "0 and 1");
+  // Turned by 45 degrees the cube shows the sphere a face, 2.53 m away.
+  expect_accepted(with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 15, size: [4, 4, 4], yaw: 45}\n"
+                                "  - {shape: sphere, x: 3.2, y: 3.2, depth: 15, radius: 1.8}\n"));
+  // Sphere above the box.
+  expect_overlap("  - {shape: sphere, x: 1, y: 1, depth: 11.5, radius: 1.6}\n"
+                 "  - {shape: box, x: 0, y: 0, depth: 15, size: [4, 4, 4], yaw: 20}\n",
+                 "{shape: box", "voids.1", "0 and 1");
+
+  // box-box, exact in plan: a 10 m × 1 m strip along the diagonal and a 2 m square beside it.
+  // Their extents overlap; the gap across the strip is 2.121 - 0.5 - 1.414 = 0.207 m.
+  const std::string strip = "  - {shape: box, x: 0, y: 0, depth: 15, size: [10, 1, 2], yaw: 45}\n";
+  expect_accepted(with_voids_3d(strip + "  - {shape: box, x: 1.5, y: -1.5, depth: 15, size: [2, 2, 2]}\n"));
+  expect_overlap(strip + "  - {shape: box, x: 1.3, y: -1.3, depth: 15, size: [2, 2, 2]}\n",
+                 "{shape: box, x: 1.3", "voids.1", "0 and 1");
+  // Same plan, but below the strip.
+  expect_accepted(with_voids_3d(strip + "  - {shape: box, x: 1.3, y: -1.3, depth: 17.5, size: [2, 2, 2]}\n"));
+  expect_overlap(strip + "  - {shape: box, x: 1.3, y: -1.3, depth: 17, size: [2, 2, 2], yaw: 10}\n",
+                 "{shape: box, x: 1.3", "voids.1", "0 and 1");
+  // Two crossed strips.
+  expect_overlap("  - {shape: sphere, x: 30, y: 0, depth: 15, radius: 1}\n" + strip +
+                     "  - {shape: box, x: 0, y: 0, depth: 15, size: [10, 1, 2], yaw: -45}\n",
+                 "{shape: box", "voids.2", "1 and 2");
+
+  // sphere-tunnel: beside the wall, and beyond the flat end.
+  const std::string level = "  - {shape: tunnel, from: [-20, 0, 15], to: [20, 0, 15], radius: 2}\n";
+  expect_accepted(with_voids_3d(level + "  - {shape: sphere, x: 0, y: 4.5, depth: 15, radius: 2}\n"));
+  expect_overlap(level + "  - {shape: sphere, x: 0, y: 4.5, depth: 15, radius: 2.6}\n",
+                 "{shape: sphere", "voids.1", "0 and 1");
+  expect_accepted(with_voids_3d(level + "  - {shape: sphere, x: 22.5, y: 1.5, depth: 15, radius: 2}\n"));
+  expect_overlap(level + "  - {shape: sphere, x: 22.5, y: 1.5, depth: 15, radius: 2.6}\n",
+                 "{shape: sphere", "voids.1", "0 and 1");
+
+  // tunnel-tunnel: parallel, end to end, crossing, and an end against a wall.
+  expect_accepted(with_voids_3d(level + "  - {shape: tunnel, from: [-20, 4.5, 15], to: [20, 4.5, 15], radius: 2}\n"));
+  expect_overlap(level + "  - {shape: tunnel, from: [-20, 3.9, 15], to: [20, 3.9, 15], radius: 2}\n",
+                 "{shape: tunnel, from: [-20, 3.9", "voids.1", "0 and 1");
+  expect_accepted(with_voids_3d(level + "  - {shape: tunnel, from: [21, 0, 15], to: [40, 0, 15], radius: 2}\n"));
+  expect_overlap(level + "  - {shape: tunnel, from: [20, 0, 15], to: [40, 0, 15], radius: 2}\n",
+                 "{shape: tunnel, from: [20", "voids.1", "0 and 1");
+  expect_accepted(with_voids_3d(level + "  - {shape: tunnel, from: [0, -20, 19.5], to: [0, 20, 19.5], radius: 2}\n"));
+  expect_overlap(level + "  - {shape: tunnel, from: [0, -20, 18.5], to: [0, 20, 18.5], radius: 2}\n",
+                 "{shape: tunnel, from: [0", "voids.1", "0 and 1");
+  const std::string stub = "  - {shape: tunnel, from: [-20, 0, 15], to: [0, 0, 15], radius: 2}\n";
+  expect_accepted(with_voids_3d(stub + "  - {shape: tunnel, from: [2.5, -20, 15], to: [2.5, 20, 15], radius: 2}\n"));
+  expect_overlap(stub + "  - {shape: tunnel, from: [1.9, -20, 15], to: [1.9, 20, 15], radius: 2}\n",
+                 "{shape: tunnel, from: [1.9", "voids.1", "0 and 1");
+  // Skew and inclined: one passes 0.2 m above the other where they cross.
+  expect_accepted(with_voids_3d("  - {shape: tunnel, from: [-20, -10, 15], to: [20, 10, 15], radius: 1}\n"
+                                "  - {shape: tunnel, from: [-10, 20, 12.8], to: [10, -20, 12.8], radius: 1}\n"));
+  expect_overlap("  - {shape: tunnel, from: [-20, -10, 15], to: [20, 10, 15], radius: 1}\n"
+                 "  - {shape: tunnel, from: [-10, 20, 11], to: [10, -20, 15], radius: 1}\n",
+                 "{shape: tunnel, from: [-10", "voids.1", "0 and 1");
+
+  // box-tunnel: a flat end before a face, a tunnel over the top, and a yawed box's corner.
+  const std::string cube = "  - {shape: box, x: 0, y: 0, depth: 15, size: [4, 4, 4]}\n";
+  expect_accepted(with_voids_3d(cube + "  - {shape: tunnel, from: [2.5, 0, 15], to: [30, 0, 15], radius: 1.5}\n"));
+  expect_overlap(cube + "  - {shape: tunnel, from: [1.9, 0, 15], to: [30, 0, 15], radius: 1.5}\n",
+                 "{shape: tunnel", "voids.1", "0 and 1");
+  expect_accepted(with_voids_3d(cube + "  - {shape: tunnel, from: [-10, -10, 11], to: [10, 10, 11], radius: 1.5}\n"));
+  expect_overlap(cube + "  - {shape: tunnel, from: [-10, -10, 11.6], to: [10, 10, 11.6], radius: 1.5}\n",
+                 "{shape: tunnel", "voids.1", "0 and 1");
+  const std::string turned = "  - {shape: box, x: 0, y: 0, depth: 15, size: [4, 4, 4], yaw: 45}\n";
+  expect_accepted(with_voids_3d(cube + "  - {shape: tunnel, from: [3.7, -20, 15], to: [3.7, 20, 15], radius: 1}\n"));
+  expect_accepted(with_voids_3d(turned + "  - {shape: tunnel, from: [4, -20, 15], to: [4, 20, 15], radius: 1}\n"));
+  expect_overlap(turned + "  - {shape: tunnel, from: [3.7, -20, 15], to: [3.7, 20, 15], radius: 1}\n",
+                 "{shape: tunnel", "voids.1", "0 and 1");
+  // A tunnel wholly inside a box.
+  expect_overlap("  - {shape: tunnel, from: [-1, 0, 15], to: [1, 0, 15], radius: 0.5}\n" + cube,
+                 "{shape: box", "voids.1", "0 and 1");
+}
+
+TEST_CASE("3d: void contents and ground loss") {
+  const Scenario sc = parse_scenario(
+      with_voids_3d("  - {shape: tunnel, from: [-10, -10, 14], to: [10, 10, 18], radius: 1.5, "
+                    "contents: {water: {table-depth: 15}}}\n"
+                    "  - {shape: box, x: 20, y: 20, depth: 15, size: [2, 2, 2], contents: {pressure: -3.0e3}}\n") +
+          "loads:\n  ground-loss:\n    - {void: 0, percent: 1.2}\n",
+      k_file);
+  CHECK(sc.voids[0].contents == Contents::water);
+  CHECK(sc.voids[0].water_table_depth == 15);
+  CHECK(sc.voids[0].x == 0);
+  CHECK(sc.voids[0].y == 0);
+  CHECK(sc.voids[0].depth == 16);
+  CHECK(sc.voids[1].contents == Contents::pressure);
+  CHECK(sc.voids[1].pressure == -3.0e3);
+  REQUIRE(sc.loads.ground_loss.size() == 1);
+  CHECK(sc.loads.ground_loss[0].percent == 1.2);
+  CHECK_FALSE(any_warning(sc, "nothing loads the model"));
+  // A water table below the lowest point of the tunnel (18 m + 1.5 m) leaves it dry.
+  const Scenario dry = parse_scenario(
+      with_voids_3d("  - {shape: tunnel, from: [-10, 0, 18], to: [10, 0, 18], radius: 1.5, "
+                    "contents: {water: {table-depth: 19.6}}}\n"),
+      k_file);
+  CHECK(any_warning(dry, "holds no water"));
+  const std::string v = "voids:\n  - {shape: sphere, x: 0, y: 0, depth: 15, radius: 2}\n";
+  expect_error(k_head_3d + v + "loads:\n  ground-loss:\n    - {void: 0}\n", "{void", "loads.ground-loss.0.percent",
+               "volume loss in % of the void's volume");
+  expect_error(k_head_3d + v + "loads:\n  ground-loss:\n    - {void: 1, percent: 1}\n", "1,",
+               "loads.ground-loss.0.void", "out of range");
+}
+
+TEST_CASE("3d: surface loads are rectangles") {
+  const std::string v = "voids:\n  - {shape: sphere, x: 0, y: 0, depth: 15, radius: 2}\n";
+  const std::string l = k_head_3d + v + "loads:\n  surface:\n";
+  const Scenario sc = parse_scenario(l + "    - {x: [-50, 5], y: [-2, 40], pressure: 2.0e3}\n", k_file);
+  REQUIRE(sc.loads.surface.size() == 1);
+  CHECK(sc.loads.surface[0].from == -50);
+  CHECK(sc.loads.surface[0].to == 5);
+  CHECK(sc.loads.surface[0].y_from == -2);
+  CHECK(sc.loads.surface[0].y_to == 40);
+  CHECK(sc.loads.surface[0].pressure == 2.0e3);
+  CHECK(sc.loads.surface[0].loc.key == "loads.surface.0");
+  expect_error(l + "    - {x: [5, 5], y: [0, 1], pressure: 1.0e3}\n", "5]", "loads.surface.0.x.1",
+               "the end of the range (5 m) must be greater than its start (5 m)");
+  expect_error(l + "    - {x: [0, 1], y: [3, -3], pressure: 1.0e3}\n", "-3]", "loads.surface.0.y.1",
+               "must be greater than its start");
+  expect_error(l + "    - {x: [-51, 0], y: [0, 1], pressure: 1.0e3}\n", "-51", "loads.surface.0.x.0",
+               "the load starts at x = -51 m, outside the block (x from -50 to 50 m, "
+               "domain.width = 100 m)");
+  expect_error(l + "    - {x: [0, 1], y: [0, 40.5], pressure: 1.0e3}\n", "40.5", "loads.surface.0.y.1",
+               "the load ends at y = 40.5 m, outside the block (y from -40 to 40 m, "
+               "domain.length = 80 m)");
+  expect_error(l + "    - {x: [0, 1, 2], y: [0, 1], pressure: 1.0e3}\n", "[0, 1, 2]",
+               "loads.surface.0.x", "expected a range [start, end] in m, found 3 values");
+  expect_error(l + "    - {x: [0, 1], pressure: 1.0e3}\n", "{x", "loads.surface.0.y",
+               "required key is missing");
+  expect_error(l + "    - {from: -5, to: 5, pressure: 1.0e3}\n", "from", "loads.surface.0.from",
+               "a 3d surface load covers a rectangle: give x: [a, b] and y: [c, d]");
+  expect_error(l + "    - {x: [0, 1], y: [0, 1], pressure: 1.0e3, area: 1}\n", "area",
+               "loads.surface.0.area", "unknown key 'area'");
+  // The 2D form stays as it was; x and y ranges there say they are for 3d.
+  expect_error(k_head + "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\nloads:\n  surface:\n"
+                        "    - {x: [0, 1], y: [0, 1], pressure: 1.0e3}\n",
+               "x: [0", "loads.surface.0.x", "x: [a, b] and y: [c, d] are for 3d models");
+}
+
+TEST_CASE("3d: voids close to the boundaries are a warning") {
+  // Centred and shallow enough: no warning.
+  const Scenario quiet =
+      parse_scenario(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 10, radius: 2}\n") + k_gravity,
+                     k_file);
+  INFO((quiet.warnings.empty() ? std::string() : quiet.warnings[0]));
+  CHECK(quiet.warnings.empty());
+  // Common practice: 3 × the centre depth (15 m) from a side; 50 - 32 = 18 m < 45 m.
+  const Scenario side =
+      parse_scenario(with_voids_3d("  - {shape: sphere, x: 30, y: 0, depth: 15, radius: 2}\n"), k_file);
+  CHECK(any_warning(side, "case.yaml:8:5: key 'voids.0': the void is 18 m from the side x = 50 m; "
+                          "common practice keeps at least 3 x its centre depth (3 x 15 m = 45 m)"));
+  CHECK(any_warning(side, "the void is 38 m from the side y = -40 m"));
+  CHECK(any_warning(side, "the void is 38 m from the side y = 40 m"));
+  CHECK_FALSE(any_warning(side, "side x = -50 m"));  // 78 m away
+  // A deep box, 8 m tall, 7 m above the bottom: 3 × 8 = 24 m wanted; the 8 m height rules the
+  // sides too when it exceeds the centre depth.
+  const Scenario deep = parse_scenario(
+      with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 39, size: [4, 4, 8]}\n"), k_file);
+  CHECK(any_warning(deep, "the void is 7 m above the bottom of the block; common practice keeps "
+                          "at least 3 x its height (3 x 8 m = 24 m)"));
+  const Scenario tall = parse_scenario(
+      with_voids_3d("  - {shape: box, x: 0, y: 0, depth: 12, size: [4, 4, 20]}\n"), k_file);
+  CHECK(any_warning(tall, "3 x its height (3 x 20 m = 60 m) between a void and a side"));
+  // A tunnel that runs close to the y faces.
+  const Scenario run = parse_scenario(
+      with_voids_3d("  - {shape: tunnel, from: [0, -35, 10], to: [0, 35, 10], radius: 1}\n"), k_file);
+  CHECK(any_warning(run, "the void is 5 m from the side y = 40 m"));
+  CHECK(any_warning(run, "the void is 5 m from the side y = -40 m"));
+  // The near-void element size rules stay as in 2D.
+  const Scenario top =
+      parse_scenario(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 2.1, radius: 2}\n"), k_file);
+  CHECK(any_warning(top, "case.yaml:8:5: key 'voids.0': the void is closer to the ground surface"));
+  const Scenario edge =
+      parse_scenario(with_voids_3d("  - {shape: sphere, x: 0, y: 37.9, depth: 15, radius: 2}\n"), k_file);
+  CHECK(any_warning(edge, "closer to a side of the domain (0.1 m)"));
+  const Scenario bottom =
+      parse_scenario(with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 47.9, radius: 2}\n"), k_file);
+  CHECK(any_warning(bottom, "closer to the bottom of the domain"));
+  const Scenario coarse = parse_scenario(
+      with_voids_3d("  - {shape: sphere, x: 0, y: 0, depth: 10, radius: 2}\n") + "mesh: {near-void: 1}\n",
+      k_file);
+  CHECK(any_warning(coarse, "coarse for this void"));
+}
+
+namespace {
+// The n-th ```yaml block of docs/scenario-format.md (from 0).
+std::string docs_yaml_block(int n) {
+  std::ifstream in(std::string(VOIDSIGN_SOURCE_DIR) + "/docs/scenario-format.md");
+  REQUIRE(in);
+  std::string line, yaml;
+  int seen = -1;
+  bool inside = false;
+  while (std::getline(in, line)) {
+    if (!inside && line == "```yaml") {
+      inside = ++seen == n;
+    } else if (inside && line == "```") {
+      break;
+    } else if (inside) {
+      yaml += line + "\n";
+    }
+  }
+  return yaml;
+}
+}  // namespace
+
+TEST_CASE("3d: the 3d example in docs/scenario-format.md parses") {
+  const std::string yaml = docs_yaml_block(1);
+  REQUIRE_FALSE(yaml.empty());
+  const Scenario sc = parse_scenario(yaml, "/tmp/voidsign-test/heath.yaml");
+  INFO((sc.warnings.empty() ? std::string() : sc.warnings[0]));
+  CHECK(sc.warnings.empty());
+  CHECK(sc.model == Model::three_d);
+  CHECK(sc.voids.size() == 3);
+  CHECK(sc.loads.surface.size() == 1);
 }
