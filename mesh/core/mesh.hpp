@@ -75,8 +75,9 @@ struct Quality {
   std::size_t worst_cell = 0;
 };
 
-/// Measures every cell: corner-triangle quality 4√3·A/Σℓ² and, for tri6, the sign and spread of
-/// det J at the corners, the midpoints and the centroid.
+/// Measures every cell: triangles 4√3·A/Σℓ², tetrahedra 6√2·V/ℓ_rms³ (1 = regular), and for
+/// quadratic cells the sign and spread of det J at the corners, the edge midpoints and the
+/// centroid. (3D facets store their corners so that the normal points out of the solid cell.)
 Quality measure_quality(const Mesh& m);
 
 }  // namespace voidsign::mesh
