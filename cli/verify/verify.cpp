@@ -177,8 +177,6 @@ std::vector<VerifyRow> boussinesq_circle() {
 }
 
 std::vector<VerifyRow> lithostatic() {
-  const std::vector<an::ColumnLayer> col{{5, 1700, 0}, {20, 2100, 0}, {0, 2600, 0}};
-  const std::vector<double> nus{0.3, 0.25, 0.2};
   const double w = 20, depth = 60;
   mesh::Geometry2D g;
   g.width = w;
@@ -188,21 +186,10 @@ std::vector<VerifyRow> lithostatic() {
   mesh::Mesh m = mesh::build_mesh_2d(g);
   std::vector<VerifyRow> rows;
   for (int in_situ = 0; in_situ < 2; ++in_situ) {
-    solver::StaticProblem p;
-    p.mesh = &m;
-    std::vector<an::ColumnLayer> ref = col;
-    for (std::size_t i = 0; i < col.size(); ++i) {
-      const double k0 = in_situ ? 0.8 : nus[i] / (1 - nus[i]);
-      ref[i].k0 = k0;
-      p.layers.push_back(layer(1e8 * static_cast<double>(i + 1), nus[i], col[i].density_kg_m3, k0));
-    }
-    p.body_force = true;
-    if (in_situ) {
-      // Prescribed in-situ state with k0 = 0.8: it must stay in equilibrium untouched.
-      p.initial_stress = solver::geostatic_stress({-5, -25, -60}, {1700, 2100, 2600}, {0.8, 0.8, 0.8});
-    }
+    std::vector<an::ColumnLayer> ref;
+    const solver::StaticProblem p = lithostatic_column_problem(m, in_situ != 0, &ref);
     const auto r = solver::solve_static(p);
-    for (std::size_t L = 0; L < col.size(); ++L) {
+    for (std::size_t L = 0; L < ref.size(); ++L) {
       double err_zz = 0, err_xx = 0, worst_zz = 0, worst_ref_zz = 1, worst_xx = 0, worst_ref_xx = 1;
       for (std::size_t c = 0; c < m.n_cells(); ++c) {
         if (m.layer[c] != static_cast<int>(L)) continue;
@@ -258,6 +245,23 @@ VerifyRow compare(std::string case_name, std::string quantity, double computed, 
   r.tolerance = tol;
   r.source = std::move(source);
   return r;
+}
+
+solver::StaticProblem lithostatic_column_problem(const mesh::Mesh& m, bool in_situ, std::vector<an::ColumnLayer>* ref) {
+  const std::vector<double> nus{0.3, 0.25, 0.2};
+  *ref = {{5, 1700, 0}, {20, 2100, 0}, {0, 2600, 0}};
+  solver::StaticProblem p;
+  p.mesh = &m;
+  p.kinematics = m.dim() == 3 ? solver::Kinematics::solid : solver::Kinematics::plane_strain;
+  for (std::size_t i = 0; i < ref->size(); ++i) {
+    const double k0 = in_situ ? 0.8 : nus[i] / (1 - nus[i]);
+    (*ref)[i].k0 = k0;
+    p.layers.push_back(layer(1e8 * static_cast<double>(i + 1), nus[i], (*ref)[i].density_kg_m3, k0));
+  }
+  p.body_force = true;
+  // A prescribed in-situ state with k0 = 0.8 must stay in equilibrium untouched.
+  if (in_situ) p.initial_stress = solver::geostatic_stress({-5, -25, -60}, {1700, 2100, 2600}, {0.8, 0.8, 0.8});
+  return p;
 }
 
 std::vector<VerifyRow> verruijt_booker_rows(double width_over_h) {

@@ -6,6 +6,9 @@
 #include <string>
 #include <vector>
 
+#include "solver/analysis/static.hpp"
+#include "solver/analytic/analytic.hpp"
+
 namespace voidsign::cli {
 
 /// One compared quantity.
@@ -31,6 +34,12 @@ const std::vector<VerifyCase>& verification_cases();
 
 /// The 3D cases (cli/verify/verify3d.cpp), appended to verification_cases().
 std::vector<VerifyCase> verification_cases_3d();
+
+/// The layered column of the lithostatic cases on mesh `m` (2D or 3D): gravity switched on with
+/// k0 = ν/(1−ν), or (in_situ) a prescribed in-situ state with k0 = 0.8. `ref` receives the
+/// column for the closed form.
+solver::StaticProblem lithostatic_column_problem(const mesh::Mesh& m, bool in_situ,
+                                                 std::vector<solver::analytic::ColumnLayer>* ref);
 
 /// Helper: a row with rel_error filled in.
 VerifyRow compare(std::string case_name, std::string quantity, double computed, double reference, double tol,

@@ -16,16 +16,8 @@ namespace {
 
 constexpr const char* src_litho = "lithostatic column: szz = -rho g |z|, sxx = syy = k0 szz (equilibrium)";
 
-solver::LayerProps layer(double young, double nu, double rho, double k0 = 0.5) {
-  solver::LayerProps lp;
-  lp.elastic = {young, nu, rho};
-  lp.k0 = k0;
-  return lp;
-}
 
 std::vector<VerifyRow> lithostatic_3d() {
-  const std::vector<an::ColumnLayer> col{{5, 1700, 0}, {20, 2100, 0}, {0, 2600, 0}};
-  const std::vector<double> nus{0.3, 0.25, 0.2};
   mesh::Geometry3D g;
   g.width = g.length = 20;
   g.depth = 60;
@@ -34,17 +26,8 @@ std::vector<VerifyRow> lithostatic_3d() {
   const mesh::Mesh m = mesh::build_mesh_3d(g);
   std::vector<VerifyRow> rows;
   for (int in_situ = 0; in_situ < 2; ++in_situ) {
-    solver::StaticProblem p;
-    p.mesh = &m;
-    p.kinematics = solver::Kinematics::solid;
-    std::vector<an::ColumnLayer> ref = col;
-    for (std::size_t i = 0; i < col.size(); ++i) {
-      const double k0 = in_situ ? 0.8 : nus[i] / (1 - nus[i]);
-      ref[i].k0 = k0;
-      p.layers.push_back(layer(1e8 * static_cast<double>(i + 1), nus[i], col[i].density_kg_m3, k0));
-    }
-    p.body_force = true;
-    if (in_situ) p.initial_stress = solver::geostatic_stress({-5, -25, -60}, {1700, 2100, 2600}, {0.8, 0.8, 0.8});
+    std::vector<an::ColumnLayer> ref;
+    const solver::StaticProblem p = lithostatic_column_problem(m, in_situ != 0, &ref);
     const auto r = solver::solve_static(p);
     double worst[3] = {0, 0, 0}, got[3] = {0, 0, 0}, want[3] = {1, 1, 1};
     const auto rc = solver::reference_centroid(m.type);
