@@ -13,6 +13,7 @@
 
 #include "mesh/build/gmsh_common.hpp"
 #include "mesh/build/mesher.hpp"
+#include "mesh/build/quadratic.hpp"
 
 namespace voidsign::mesh {
 
@@ -21,10 +22,6 @@ namespace {
 using gmsh_detail::GmshSession;
 using Vec3 = std::array<double, 3>;
 
-// Tetrahedron edges in VTK order: the midside node 4 + e of a tet10 sits on edge e. (Gmsh's own
-// 10-node tetrahedron, element type 11, orders them 01, 12, 20, 03, 23, 13; we place the midside
-// nodes ourselves, see make_quadratic.)
-constexpr int kTetEdge[6][2] = {{0, 1}, {1, 2}, {2, 0}, {0, 3}, {1, 3}, {2, 3}};
 
 void check_geometry(const Geometry3D& g) {
   const Sizing& s = g.sizing;
@@ -178,207 +175,6 @@ void orient_positively(Mesh& m) {
   }
 }
 
-// The distinct edges of a tet4 mesh, numbered by (smaller node, larger node).
-struct EdgeTable {
-  std::vector<std::size_t> start;  // the edges whose smaller node is a: start[a] .. start[a + 1]
-  std::vector<int> lo, hi;         // end nodes of each edge, lo < hi
-  std::vector<int> of_cell;        // 6 per cell: the edge id of local edge e (kTetEdge)
-
-  // Edge id of {a, b}, or −1.
-  int find(int a, int b) const {
-    if (a > b) std::swap(a, b);
-    const auto first = hi.begin() + static_cast<std::ptrdiff_t>(start[static_cast<std::size_t>(a)]);
-    const auto last = hi.begin() + static_cast<std::ptrdiff_t>(start[static_cast<std::size_t>(a) + 1]);
-    const auto it = std::lower_bound(first, last, b);
-    return it != last && *it == b ? static_cast<int>(it - hi.begin()) : -1;
-  }
-};
-
-EdgeTable build_edges(const Mesh& m) {
-  const std::size_t nn = m.n_nodes(), nc = m.n_cells();
-  // Bucket the 6 edges of every cell under their smaller node, then sort each small bucket.
-  std::vector<std::size_t> first(nn + 1, 0);
-  for (std::size_t c = 0; c < nc; ++c)
-    for (const auto& e : kTetEdge)
-      ++first[static_cast<std::size_t>(std::min(m.cell(c)[e[0]], m.cell(c)[e[1]])) + 1];
-  for (std::size_t i = 0; i < nn; ++i) first[i + 1] += first[i];
-  std::vector<std::pair<int, int>> slot(first[nn]);  // (larger node, 6·cell + local edge)
-  {
-    std::vector<std::size_t> fill(first.begin(), first.end() - 1);
-    for (std::size_t c = 0; c < nc; ++c)
-      for (int e = 0; e < 6; ++e) {
-        const int a = m.cell(c)[kTetEdge[e][0]], b = m.cell(c)[kTetEdge[e][1]];
-        slot[fill[static_cast<std::size_t>(std::min(a, b))]++] = {std::max(a, b),
-                                                                  static_cast<int>(6 * c) + e};
-      }
-  }
-  EdgeTable t;
-  t.start.assign(nn + 1, 0);
-  t.of_cell.assign(6 * nc, -1);
-  for (std::size_t a = 0; a < nn; ++a) {
-    t.start[a] = t.hi.size();
-    const auto b0 = slot.begin() + static_cast<std::ptrdiff_t>(first[a]);
-    const auto b1 = slot.begin() + static_cast<std::ptrdiff_t>(first[a + 1]);
-    std::sort(b0, b1);
-    for (auto it = b0; it != b1; ++it) {
-      if (it == b0 || it->first != (it - 1)->first) {
-        t.lo.push_back(static_cast<int>(a));
-        t.hi.push_back(it->first);
-      }
-      t.of_cell[static_cast<std::size_t>(it->second)] = static_cast<int>(t.hi.size()) - 1;
-    }
-  }
-  t.start[nn] = t.hi.size();
-  return t;
-}
-
-// min det J / max det J over the corners, edge midpoints and centroid of tet10 cell v (≤ 0 when
-// the cell folds).
-double tet10_jacobian_ratio(const std::vector<Point>& x, const int* v) {
-  static constexpr double pts[11][3] = {{0, 0, 0},     {1, 0, 0},     {0, 1, 0},       {0, 0, 1},
-                                        {0.5, 0, 0},   {0.5, 0.5, 0}, {0, 0.5, 0},     {0, 0, 0.5},
-                                        {0.5, 0, 0.5}, {0, 0.5, 0.5}, {0.25, 0.25, 0.25}};
-  static constexpr double dL[4][3] = {{-1, -1, -1}, {1, 0, 0}, {0, 1, 0}, {0, 0, 1}};
-  double jmin = std::numeric_limits<double>::max(), jmax = std::numeric_limits<double>::lowest();
-  for (const auto& p : pts) {
-    const double L[4] = {1 - p[0] - p[1] - p[2], p[0], p[1], p[2]};
-    double J[3][3] = {};
-    for (int k = 0; k < 10; ++k) {
-      double g[3];
-      for (int j = 0; j < 3; ++j)
-        g[j] = k < 4 ? (4 * L[k] - 1) * dL[k][j]
-                     : 4 * (L[kTetEdge[k - 4][0]] * dL[kTetEdge[k - 4][1]][j] +
-                            L[kTetEdge[k - 4][1]] * dL[kTetEdge[k - 4][0]][j]);
-      for (int i = 0; i < 3; ++i)
-        for (int j = 0; j < 3; ++j) J[i][j] += x[v[k]][i] * g[j];
-    }
-    const double det = J[0][0] * (J[1][1] * J[2][2] - J[1][2] * J[2][1]) -
-                       J[0][1] * (J[1][0] * J[2][2] - J[1][2] * J[2][0]) +
-                       J[0][2] * (J[1][0] * J[2][1] - J[1][1] * J[2][0]);
-    jmin = std::min(jmin, det);
-    jmax = std::max(jmax, det);
-  }
-  return jmax > 0 ? jmin / jmax : -1.0;
-}
-
-// Curved cells whose det J varies more than this (min/max) get straight edges back: such a cell
-// is a flat sliver on the curved surface that its bulging midside nodes nearly fold.
-constexpr double kMinJacobianRatio = 0.1;
-
-// Turns the tet4 mesh into tet10: a node on every edge, at the chord midpoint, or on the model
-// curve or curved surface the edge lies on (the orthogonal projection of the chord midpoint).
-// A cell the curved nodes would fold or nearly fold gets straight edges back. Nodes are
-// then renumbered in order of first use, as read_cells numbers them. `node_of_tag` maps Gmsh's
-// node tags to our corner nodes.
-//
-// This is what Gmsh's setOrder(2) does, at a fraction of its time and memory on large meshes.
-void make_quadratic(Mesh& m, const std::vector<int>& node_of_tag) {
-  const EdgeTable t = build_edges(m);
-  const std::size_t n_corner = m.n_nodes(), n_edges = t.hi.size(), nc = m.n_cells();
-  std::vector<Point> chord(n_edges);
-  for (std::size_t e = 0; e < n_edges; ++e) {
-    const Point& a = m.nodes[static_cast<std::size_t>(t.lo[e])];
-    const Point& b = m.nodes[static_cast<std::size_t>(t.hi[e])];
-    chord[e] = {(a[0] + b[0]) / 2, (a[1] + b[1]) / 2, (a[2] + b[2]) / 2};
-  }
-
-  // Which curved model entity each edge lies on: surfaces first, then curves, which win.
-  std::vector<std::pair<int, int>> owner(n_edges, {0, 0});  // (dim, tag); dim 0 = none
-  auto claim = [&](int dim, int tag) {
-    std::string type;
-    gmsh::model::getType(dim, tag, type);
-    if (type == (dim == 2 ? "Plane" : "Line")) return;
-    std::vector<std::size_t> etags, enodes;
-    const int n = dim == 2 ? 3 : 2;
-    gmsh::model::mesh::getElementsByType(dim == 2 ? 2 : 1, etags, enodes, tag);
-    for (std::size_t k = 0; k < etags.size(); ++k)
-      for (int i = 0; i < (dim == 2 ? 3 : 1); ++i) {
-        const int a = gmsh_detail::tag_value(node_of_tag, static_cast<int>(enodes[k * n + i]));
-        const int b =
-            gmsh_detail::tag_value(node_of_tag, static_cast<int>(enodes[k * n + (i + 1) % n]));
-        const int e = a >= 0 && b >= 0 ? t.find(a, b) : -1;
-        if (e >= 0) owner[static_cast<std::size_t>(e)] = {dim, tag};
-      }
-  };
-  for (int dim = 2; dim >= 1; --dim) {
-    gmsh::vectorpair entities;
-    gmsh::model::getEntities(entities, dim);
-    for (const auto& [d, tag] : entities) claim(d, tag);
-  }
-  std::vector<std::size_t> by_owner(n_edges);
-  for (std::size_t e = 0; e < n_edges; ++e) by_owner[e] = e;
-  std::stable_sort(by_owner.begin(), by_owner.end(),
-                   [&](std::size_t p, std::size_t q) { return owner[p] < owner[q]; });
-
-  std::vector<Point> mid = chord;
-  std::vector<char> curved(n_edges, 0);
-  for (std::size_t i = 0; i < n_edges;) {
-    const auto [dim, tag] = owner[by_owner[i]];
-    std::size_t j = i;
-    while (j < n_edges && owner[by_owner[j]] == owner[by_owner[i]]) ++j;
-    if (dim > 0) {
-      std::vector<double> xyz, closest, param;
-      for (std::size_t k = i; k < j; ++k)
-        xyz.insert(xyz.end(), chord[by_owner[k]].begin(), chord[by_owner[k]].end());
-      gmsh::model::getClosestPoint(dim, tag, xyz, closest, param);
-      for (std::size_t k = i; k < j && 3 * (k - i) + 2 < closest.size(); ++k) {
-        const std::size_t e = by_owner[k];
-        const Point p = {closest[3 * (k - i)], closest[3 * (k - i) + 1], closest[3 * (k - i) + 2]};
-        const Point& a = m.nodes[static_cast<std::size_t>(t.lo[e])];
-        const Point& b = m.nodes[static_cast<std::size_t>(t.hi[e])];
-        const double len = std::hypot(b[0] - a[0], b[1] - a[1], b[2] - a[2]);
-        const double moved = std::hypot(p[0] - chord[e][0], p[1] - chord[e][1], p[2] - chord[e][2]);
-        if (moved < 0.5 * len) {  // a projection that strays further found the wrong sheet
-          mid[e] = p;
-          curved[e] = moved > 0;
-        }
-      }
-    }
-    i = j;
-  }
-
-  std::vector<int> cells(nc * 10);
-  for (std::size_t c = 0; c < nc; ++c) {
-    for (int k = 0; k < 4; ++k) cells[10 * c + k] = m.cells[4 * c + k];
-    for (int e = 0; e < 6; ++e)
-      cells[10 * c + 4 + e] = static_cast<int>(n_corner) + t.of_cell[6 * c + e];
-  }
-  m.nodes.insert(m.nodes.end(), mid.begin(), mid.end());
-  m.cells = std::move(cells);
-  m.type = CellType::tet10;
-
-  // Straighten the edges of cells that the curved nodes (nearly) fold, until none is left.
-  for (bool changed = true; changed;) {
-    changed = false;
-    for (std::size_t c = 0; c < nc; ++c) {
-      const int* v = m.cell(c);
-      bool any = false;
-      for (int e = 0; e < 6; ++e) any = any || curved[static_cast<std::size_t>(v[4 + e]) - n_corner];
-      if (!any || tet10_jacobian_ratio(m.nodes, v) >= kMinJacobianRatio) continue;
-      for (int e = 0; e < 6; ++e) {
-        const std::size_t id = static_cast<std::size_t>(v[4 + e]) - n_corner;
-        if (!curved[id]) continue;
-        curved[id] = 0;
-        m.nodes[static_cast<std::size_t>(v[4 + e])] = chord[id];
-        changed = true;
-      }
-    }
-  }
-
-  // Number the nodes in order of first use.
-  std::vector<int> renum(m.n_nodes(), -1);
-  std::vector<Point> nodes;
-  nodes.reserve(m.n_nodes());
-  for (int& v : m.cells) {
-    if (renum[static_cast<std::size_t>(v)] < 0) {
-      renum[static_cast<std::size_t>(v)] = static_cast<int>(nodes.size());
-      nodes.push_back(m.nodes[static_cast<std::size_t>(v)]);
-    }
-    v = renum[static_cast<std::size_t>(v)];
-  }
-  m.nodes = std::move(nodes);
-}
-
 Mesh build_with_gmsh(const Geometry3D& g);
 
 }  // namespace
@@ -491,7 +287,7 @@ Mesh build_with_gmsh(const Geometry3D& g) {
   const double block = g.width * g.length * g.depth;
   if (std::abs(corner_volume(m) - block) > 1e-6 * block)
     throw MeshError("the volume mesh does not fill the block (mesher failure)");
-  if (s.order == 2) make_quadratic(m, node_of_tag);
+  if (s.order == 2) gmsh_detail::make_quadratic(m, node_of_tag);
   finish_topology(m, tol * 10);
   return m;
 }
