@@ -34,6 +34,18 @@ class SpdSolver {
   int last_iterations = 0, total_iterations = 0;
   /// Nonzeros of the factor (direct solver only).
   virtual double factor_nonzeros() const { return 0; }
+
+  /// Declares the nodes whose unknowns may differ between the first matrix factorised and a
+  /// later variant of it: `wall` nodes (shared with the rest of the model) and `inner` nodes
+  /// (coupled only to wall and inner nodes). Call before analyze. The direct solver then orders
+  /// inner nodes first and wall nodes last, so that factorize_variant reuses the first factor.
+  virtual void set_variable_nodes(const std::vector<int>& /*wall*/, const std::vector<int>& /*inner*/) {}
+  /// Numeric set-up for a matrix equal to the last one factorised except among the unknowns of
+  /// the variable nodes (where unknowns may also be decoupled, i.e. constrained). Default:
+  /// factorize(k). Later solve() calls use this matrix.
+  virtual void factorize_variant(const SparseMatrix& k) { factorize(k); }
+  /// How the last factorize_variant was done, for the summary (empty: a factorisation of its own).
+  std::string variant_method;
 };
 
 /// The solver for a model of n_dofs unknowns with dofs_per_node per node. `coords` (node
