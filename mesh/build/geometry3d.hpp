@@ -23,6 +23,15 @@ struct VoidSolid {
 
 struct Geometry3D {
   double width = 100, length = 100, depth = 50;
+  /// Only the quarter x ≥ 0, y ≥ 0 of the block (problems symmetric about x = 0 and y = 0, as
+  /// in the verification cases): the planes x = 0 and y = 0 become faces of the block, where
+  /// rollers are exactly the symmetry condition.
+  bool quarter = false;
+  /// When positive, the `surface` size holds only within this horizontal distance of
+  /// (focus_x, focus_y) and grows by the size gradient beyond it, as it does with depth: for
+  /// half-space checks on wide blocks. 0 (default): the surface size holds over the whole top.
+  double surface_radius = 0;
+  double focus_x = 0, focus_y = 0;
   std::vector<double> layer_thickness;  ///< top down; the last layer runs to the bottom
   std::vector<VoidSolid> voids;
   Sizing sizing;

@@ -121,7 +121,11 @@ double near_size(const VoidSolid& v, const Sizing& s) {
 // linearly by `gradient` with the distance from them, capped at `far`.
 double target_size(const Geometry3D& g, const Vec3& p) {
   const Sizing& s = g.sizing;
-  double h = std::min(s.far, s.surface + s.gradient * std::abs(p[2]));
+  double from_surface = std::abs(p[2]);
+  if (g.surface_radius > 0)
+    from_surface = std::hypot(from_surface,
+                              std::max(0.0, std::hypot(p[0] - g.focus_x, p[1] - g.focus_y) - g.surface_radius));
+  double h = std::min(s.far, s.surface + s.gradient * from_surface);
   for (const VoidSolid& v : g.voids)
     h = std::min(h, near_size(v, s) + s.gradient * distance_to_void(v, p));
   return h;
@@ -196,7 +200,8 @@ Mesh build_with_gmsh(const Geometry3D& g) {
   using gmsh_detail::note_tag;
   const Sizing& s = g.sizing;
   GmshSession session;
-  const double x0 = -g.width / 2, y0 = -g.length / 2;
+  const double x0 = g.quarter ? 0.0 : -g.width / 2, y0 = g.quarter ? 0.0 : -g.length / 2;
+  const double bx = g.quarter ? g.width / 2 : g.width, by = g.quarter ? g.length / 2 : g.length;
   const double tol = 1e-7 * std::max({g.width, g.length, g.depth});
 
   gmsh::vectorpair layers, voids;
@@ -207,7 +212,7 @@ Mesh build_with_gmsh(const Geometry3D& g) {
     const double t = g.layer_thickness.empty() ? g.depth : g.layer_thickness[i];
     const double z_bot = last ? -g.depth : std::max(z_top - t, -g.depth);
     if (z_top - z_bot <= tol) break;
-    layers.push_back({3, occ::addBox(x0, y0, z_bot, g.width, g.length, z_top - z_bot)});
+    layers.push_back({3, occ::addBox(x0, y0, z_bot, bx, by, z_top - z_bot)});
     z_top = z_bot;
   }
   for (const VoidSolid& v : g.voids) voids.push_back({3, add_void_solid(v)});
@@ -284,7 +289,7 @@ Mesh build_with_gmsh(const Geometry3D& g) {
                           "a meshed volume belongs to no layer", &node_of_tag);
   if (m.cells.empty()) throw MeshError("the mesher produced no cells");
   orient_positively(m);
-  const double block = g.width * g.length * g.depth;
+  const double block = g.width * g.length * g.depth / (g.quarter ? 4 : 1);
   if (std::abs(corner_volume(m) - block) > 1e-6 * block)
     throw MeshError("the volume mesh does not fill the block (mesher failure)");
   if (s.order == 2) gmsh_detail::make_quadratic(m, node_of_tag);
@@ -316,15 +321,17 @@ double estimate_cells_3d(const Geometry3D& g) {
   check_geometry(g);
   // Start from boxes about `far` wide, then refine where the size varies.
   const double far = g.sizing.far;
-  const int nx = std::max(1, static_cast<int>(std::ceil(g.width / far)));
-  const int ny = std::max(1, static_cast<int>(std::ceil(g.length / far)));
+  const double bx = g.quarter ? g.width / 2 : g.width, by = g.quarter ? g.length / 2 : g.length;
+  const double x0 = g.quarter ? 0.0 : -g.width / 2, y0 = g.quarter ? 0.0 : -g.length / 2;
+  const int nx = std::max(1, static_cast<int>(std::ceil(bx / far)));
+  const int ny = std::max(1, static_cast<int>(std::ceil(by / far)));
   const int nz = std::max(1, static_cast<int>(std::ceil(g.depth / far)));
-  const Vec3 half = {g.width / nx / 2, g.length / ny / 2, g.depth / nz / 2};
+  const Vec3 half = {bx / nx / 2, by / ny / 2, g.depth / nz / 2};
   double sum = 0;
   for (int i = 0; i < nx; ++i)
     for (int j = 0; j < ny; ++j)
       for (int k = 0; k < nz; ++k) {
-        const Vec3 c = {-g.width / 2 + (2 * i + 1) * half[0], -g.length / 2 + (2 * j + 1) * half[1],
+        const Vec3 c = {x0 + (2 * i + 1) * half[0], y0 + (2 * j + 1) * half[1],
                         -g.depth + (2 * k + 1) * half[2]};
         sum += integrate_cube(g, c, half, 0);
       }

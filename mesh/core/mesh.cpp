@@ -66,40 +66,51 @@ void finish_topology_2d(Mesh& m, double tol) {
   const int npc = m.npc();
   const std::size_t nc = m.n_cells();
   std::unordered_map<std::uint64_t, EdgeUse> solid;
-  std::unordered_map<std::uint64_t, int> void_edges;
+  std::unordered_map<std::uint64_t, EdgeUse> void_edges;
   solid.reserve(nc * 2);
   for (std::size_t c = 0; c < nc; ++c) {
     const int* v = m.cell(c);
     for (int e = 0; e < 3; ++e) {
       const auto key = edge_key(v[edge_corner[e][0]], v[edge_corner[e][1]]);
-      if (m.void_id[c] >= 0) {
-        void_edges[key] = m.void_id[c];
-        continue;
-      }
-      EdgeUse& u = solid[key];
+      EdgeUse& u = m.void_id[c] >= 0 ? void_edges[key] : solid[key];
       ++u.count;
       u.cell = static_cast<int>(c);
       u.local = e;
     }
   }
 
-  m.facets.clear();
-  for (const auto& [key, use] : solid) {
-    if (use.count != 1) continue;
+  auto facet_of = [&](const EdgeUse& use) {
     const int* v = m.cell(static_cast<std::size_t>(use.cell));
     Facet f;
     f.nodes[0] = v[edge_corner[use.local][0]];
     f.nodes[1] = v[edge_corner[use.local][1]];
     if (npc == 6) f.nodes[2] = v[3 + use.local];
     f.cell = use.cell;
+    return f;
+  };
+  m.facets.clear();
+  for (const auto& [key, use] : solid) {
+    if (use.count != 1) continue;
+    Facet f = facet_of(use);
     bool outer = false;
     f.kind = classify(m, f.nodes[0], f.nodes[1], tol, &outer);
     if (!outer) {
       auto it = void_edges.find(key);
       if (it == void_edges.end())
         throw std::runtime_error("mesh has an internal boundary that is neither the block's edge nor a void wall");
-      f.void_id = it->second;
+      f.void_id = m.void_id[static_cast<std::size_t>(it->second.cell)];
     }
+    m.facets.push_back(f);
+  }
+  // Edges of void cells on the block's sides (a void cut by the axis or a side): the model
+  // without voids needs their supports and loads too.
+  for (const auto& [key, use] : void_edges) {
+    if (use.count != 1 || solid.count(key)) continue;
+    Facet f = facet_of(use);
+    bool outer = false;
+    f.kind = classify(m, f.nodes[0], f.nodes[1], tol, &outer);
+    if (!outer) throw std::runtime_error("mesh has a void boundary that is neither the block's edge nor a void wall");
+    f.void_id = m.void_id[static_cast<std::size_t>(use.cell)];
     m.facets.push_back(f);
   }
   // Hash-map iteration order is unspecified: sort so that results do not depend on it.
@@ -207,14 +218,20 @@ void finish_topology_3d(Mesh& m, double tol) {
         }
       }
       if (e - g > 2) throw std::runtime_error("mesh has a face shared by more than two cells");
+      const bool lone_void = n_solid == 0 && e - g == 1;  // a void cell's face on the block's side
+      const FaceUse* owner = lone_void ? &*g : solid;
       g = e;
-      if (n_solid != 1) continue;
-      const int* v = m.cell(static_cast<std::size_t>(solid->cell));
-      const int* local = tet_face[solid->local];
+      if (n_solid != 1 && !lone_void) continue;
+      const int* v = m.cell(static_cast<std::size_t>(owner->cell));
+      const int* local = tet_face[owner->local];
       Facet f;
       for (int k = 0; k < nodes_per_facet(m.type); ++k) f.nodes[k] = v[local[k]];
-      f.cell = solid->cell;
-      if (!classify_face(m, f.nodes.data(), tol, &f.kind)) {
+      f.cell = owner->cell;
+      if (lone_void) {
+        if (!classify_face(m, f.nodes.data(), tol, &f.kind))
+          throw std::runtime_error("mesh has a void boundary that is neither the block's side nor a void wall");
+        f.void_id = void_id;
+      } else if (!classify_face(m, f.nodes.data(), tol, &f.kind)) {
         if (void_id < 0)
           throw std::runtime_error(
               "mesh has an internal boundary that is neither the block's side nor a void wall");

@@ -34,8 +34,8 @@ enum class FacetKind { surface, bottom, left, right, front, back, void_wall };
 struct Facet {
   std::array<int, 6> nodes{-1, -1, -1, -1, -1, -1};  ///< corners, then midside nodes (quadratic)
   FacetKind kind = FacetKind::surface;
-  int cell = -1;     ///< the solid cell the facet belongs to
-  int void_id = -1;  ///< for void walls: index of the void on the other side
+  int cell = -1;     ///< the cell the facet bounds (a ground cell, except on sides of void cells)
+  int void_id = -1;  ///< void walls: the void on the other side; sides of void cells: their void
 };
 
 /// Node coordinates [m]: x, y, z. 2D models use x and z (y = 0); axisymmetric: r = x.
@@ -50,7 +50,11 @@ struct Mesh {
   int n_voids = 0;
 
   // Derived by finish_topology().
-  std::vector<Facet> facets;       ///< boundary facets of the solid part
+  /// Boundary facets: the block's sides (of ground cells, and of void cells where a void is cut
+  /// by a side, as by a symmetry plane or a tunnel through the block: the model without voids
+  /// needs their supports and loads) and the void walls (ground cell against void cell). `cell`
+  /// is the cell the facet bounds; void_id ≥ 0 on walls and on sides of void cells.
+  std::vector<Facet> facets;
   std::vector<int> surface_nodes;  ///< nodes on z = 0, sorted by x (3D: by x, then y)
   double x_min = 0, x_max = 0, y_min = 0, y_max = 0, z_min = 0, z_max = 0;
 

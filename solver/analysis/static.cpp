@@ -274,6 +274,7 @@ Vector model_load(const StaticProblem& p, const std::vector<char>& active, bool 
   }
   for (const Vector& part : partial) f += part;
   for (const mesh::Facet& fc : m.facets) {
+    if (!active[static_cast<std::size_t>(fc.cell)]) continue;  // a void cell's side: no ground to load
     if (fc.kind == mesh::FacetKind::surface)
       add_surface_pressure(p, fc, f);
     else if (fc.kind == mesh::FacetKind::void_wall && with_voids)

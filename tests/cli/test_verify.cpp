@@ -37,6 +37,12 @@ TEST_CASE("verify: Verruijt & Booker (1996) shallow tunnel ground loss within 5 
 TEST_CASE("verify: Mogi (1958) / McTigue (1987) pressurised sphere within 2 %") { check_case("mogi-mctigue"); }
 TEST_CASE("verify: Boussinesq circular load centre settlement within 2 %") { check_case("boussinesq-circle"); }
 TEST_CASE("verify: lithostatic column within 0.1 % in every layer") { check_case("lithostatic"); }
+TEST_CASE("verify: Mogi (1958) / McTigue (1987) sphere in 3D within 3 %, and against the axisymmetric model within 1 %") {
+  check_case("sphere-3d");
+}
+TEST_CASE("verify: lithostatic column in 3D within 0.1 %") { check_case("lithostatic-3d"); }
+TEST_CASE("verify: Boussinesq (1885) square load on a half-space in 3D within 3 %") { check_case("boussinesq-3d"); }
+TEST_CASE("verify: a tunnel 20 depths long in 3D against plane strain within 2 %") { check_case("tunnel-plane-strain"); }
 TEST_CASE("verify: convergence order on Kirsch, linear >= 1.8 and quadratic >= 2.5") { check_case("convergence-kirsch"); }
 
 TEST_CASE("Verruijt & Booker error against block size, printed (the 100 h row is asserted above)") {

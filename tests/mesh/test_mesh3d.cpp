@@ -478,11 +478,13 @@ TEST_CASE("3D mesher: a tunnel running out through the block's side is cut at th
   for (std::size_t c = 0; c < m.n_cells(); ++c)
     if (m.void_id[c] == 0) vol += cell_volume(m, c);
   CHECK(vol == doctest::Approx(pi * 1.5 * 1.5 * 14).epsilon(0.01));
-  // The solid front face has the tunnel's mouth cut out of it.
-  double front = 0;
+  // The ground's front face has the tunnel's mouth cut out of it; the mouth itself is a front
+  // facet of the void's cells (the model without voids needs its supports).
+  double front = 0, mouth = 0;
   for (const Facet& f : m.facets)
-    if (f.kind == FacetKind::front) front += facet_area(m, f);
+    if (f.kind == FacetKind::front) (f.void_id < 0 ? front : mouth) += facet_area(m, f);
   CHECK(front == doctest::Approx(30 * 15 - pi * 1.5 * 1.5).epsilon(0.002));
+  CHECK(front + mouth == doctest::Approx(30 * 15).epsilon(1e-9));
 }
 
 TEST_CASE("3D mesher: a coarse near-void size still resolves a sphere cap cut by an interface") {
@@ -555,15 +557,21 @@ TEST_CASE("finish_topology on a hand-built cube of six tetrahedra") {
     if (quadratic)
       for (int i = 0; i < 3; ++i) CHECK(m.nodes[m.surface_nodes[i]] == expect_first[i]);
 
-    // Excavate one cell: its two outer faces go, its two inner faces become void walls.
+    // Excavate one cell: its two outer faces stay as sides of a void cell, its two inner faces
+    // become void walls of the ground cells next to it.
     m.void_id[3] = 0;
     m.n_voids = 1;
     finish_topology(m, 1e-9);
-    CHECK(m.facets.size() == 12);
-    int walls = 0;
+    CHECK(m.facets.size() == 14);
+    int walls = 0, void_sides = 0;
     for (const Facet& f : m.facets) {
-      CHECK(f.cell != 3);
+      if (f.cell == 3) {
+        ++void_sides;
+        CHECK(f.kind != FacetKind::void_wall);
+        CHECK(f.void_id == 0);
+      }
       if (f.kind == FacetKind::void_wall) {
+        CHECK(f.cell != 3);
         ++walls;
         CHECK(f.void_id == 0);
       }
@@ -576,6 +584,7 @@ TEST_CASE("finish_topology on a hand-built cube of six tetrahedra") {
         }
     }
     CHECK(walls == 2);
+    CHECK(void_sides == 2);
   }
 }
 
