@@ -1,0 +1,698 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+#include "solver/analysis/harmonic.hpp"
+
+#include <omp.h>
+
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <exception>
+#include <fstream>
+#include <limits>
+#include <memory>
+#include <numbers>
+#include <sstream>
+#include <stdexcept>
+
+#include "solver/assembly/system.hpp"
+
+namespace voidsign::solver {
+
+// ---------------------------------------------------------------------------------------------
+// The layered column.
+
+VerticalColumn::VerticalColumn(const std::vector<HarmonicLayer>& layers, IncidentWave type, double omega,
+                               double amplitude)
+    : amplitude_(amplitude) {
+  if (layers.empty()) throw std::invalid_argument("VerticalColumn: no layers");
+  const std::size_t n = layers.size();
+  top_.resize(n);
+  k_.resize(n);
+  a_.resize(n);
+  b_.resize(n);
+  std::vector<Complex> impedance(n);
+  double depth = 0;
+  for (std::size_t j = 0; j < n; ++j) {
+    const Elastic& e = layers[j].elastic;
+    const double mu = e.young / (2 * (1 + e.poisson));
+    const double lambda = e.young * e.poisson / ((1 + e.poisson) * (1 - 2 * e.poisson));
+    const Complex modulus = hysteretic_factor(layers[j].damping) * (type == IncidentWave::s ? mu : lambda + 2 * mu);
+    const Complex speed = std::sqrt(modulus / e.density);
+    k_[j] = omega / speed;
+    impedance[j] = e.density * speed;  // ρ v* = G* k*/ω
+    top_[j] = depth;
+    if (j + 1 < n) {
+      if (!(layers[j].thickness > 0)) throw std::invalid_argument("VerticalColumn: layer thickness must be > 0");
+      depth += layers[j].thickness;
+    }
+  }
+  // Free surface: τ = 0 ⇒ A₁ = B₁. Then continuity of u and τ at each interface (Kramer 1996,
+  // eq. 7.34): A_{j+1} = ½A_j(1+α_j)e^{ik_j h_j} + ½B_j(1−α_j)e^{−ik_j h_j},
+  //            B_{j+1} = ½A_j(1−α_j)e^{ik_j h_j} + ½B_j(1+α_j)e^{−ik_j h_j},  α_j = ρ_j v*_j/(ρ_{j+1} v*_{j+1}).
+  a_[0] = b_[0] = 1.0;
+  const Complex i(0, 1);
+  for (std::size_t j = 0; j + 1 < n; ++j) {
+    const Complex alpha = impedance[j] / impedance[j + 1];
+    const Complex up = a_[j] * std::exp(i * k_[j] * layers[j].thickness);
+    const Complex down = b_[j] * std::exp(-i * k_[j] * layers[j].thickness);
+    a_[j + 1] = 0.5 * (up * (1.0 + alpha) + down * (1.0 - alpha));
+    b_[j + 1] = 0.5 * (up * (1.0 - alpha) + down * (1.0 + alpha));
+  }
+  // Outcrop motion of the half-space = 2 A_N; scale so that it equals `amplitude`.
+  const Complex scale = amplitude / (2.0 * a_[n - 1]);
+  for (std::size_t j = 0; j < n; ++j) {
+    a_[j] *= scale;
+    b_[j] *= scale;
+  }
+}
+
+Complex VerticalColumn::displacement(double depth) const {
+  std::size_t j = 0;
+  while (j + 1 < top_.size() && depth >= top_[j + 1]) ++j;
+  const double zeta = depth - top_[j];
+  const Complex i(0, 1);
+  return a_[j] * std::exp(i * k_[j] * zeta) + b_[j] * std::exp(-i * k_[j] * zeta);
+}
+
+double fastest_p_speed(const std::vector<HarmonicLayer>& layers) {
+  double c = 0;
+  for (const HarmonicLayer& l : layers) {
+    const Elastic& e = l.elastic;
+    const double m = e.young * (1 - e.poisson) / ((1 + e.poisson) * (1 - 2 * e.poisson));
+    c = std::max(c, std::sqrt(m / e.density));
+  }
+  return c;
+}
+
+namespace {
+
+using Clock = std::chrono::steady_clock;
+double seconds_since(Clock::time_point t0) { return std::chrono::duration<double>(Clock::now() - t0).count(); }
+
+std::array<double, 3> corner_centroid(const mesh::Mesh& m, std::size_t c) {
+  const int* v = m.cell(c);
+  const int nc = m.dim() == 3 ? 4 : 3;
+  std::array<double, 3> g{0, 0, 0};
+  for (int a = 0; a < nc; ++a)
+    for (int i = 0; i < 3; ++i) g[static_cast<std::size_t>(i)] += m.nodes[v[a]][static_cast<std::size_t>(i)] / nc;
+  return g;
+}
+
+double largest_edge(const mesh::Mesh& m, std::size_t c) {
+  const int* v = m.cell(c);
+  const int nc = m.dim() == 3 ? 4 : 3;
+  double h = 0;
+  for (int a = 0; a < nc; ++a)
+    for (int b = a + 1; b < nc; ++b) {
+      const auto& p = m.nodes[v[a]];
+      const auto& q = m.nodes[v[b]];
+      h = std::max(h, std::hypot(p[0] - q[0], p[1] - q[1], p[2] - q[2]));
+    }
+  return h;
+}
+
+// The full (both triangles) CSC pattern of the lower-triangle pattern `lower`, zero values.
+ComplexMatrix full_pattern(const SparseMatrix& lower) {
+  const long n = lower.cols();
+  const int* lo = lower.outerIndexPtr();
+  const int* li = lower.innerIndexPtr();
+  std::vector<long> outer(static_cast<std::size_t>(n) + 1, 0);
+  for (long j = 0; j < n; ++j)
+    for (int p = lo[j]; p < lo[j + 1]; ++p) {
+      ++outer[static_cast<std::size_t>(j) + 1];
+      if (li[p] != j) ++outer[static_cast<std::size_t>(li[p]) + 1];
+    }
+  for (long j = 0; j < n; ++j) outer[static_cast<std::size_t>(j) + 1] += outer[static_cast<std::size_t>(j)];
+  ComplexMatrix a(n, n);
+  a.resizeNonZeros(outer.back());
+  std::copy(outer.begin(), outer.end(), a.outerIndexPtr());
+  std::vector<long> fill(outer.begin(), outer.end() - 1);
+  long* inner = a.innerIndexPtr();
+  // Column j receives its upper entries from columns j' < j (visited first, in increasing j')
+  // and then its own lower entries: every column comes out sorted.
+  for (long j = 0; j < n; ++j)
+    for (int p = lo[j]; p < lo[j + 1]; ++p) {
+      const long i = li[p];
+      inner[fill[static_cast<std::size_t>(j)]++] = i;
+      if (i != j) inner[fill[static_cast<std::size_t>(i)]++] = j;
+    }
+  std::fill(a.valuePtr(), a.valuePtr() + a.nonZeros(), Complex(0.0));
+  return a;
+}
+
+// Positions in the CSC arrays of the (n·d)² entries of cell c, row-major (p, q) → (dof_p, dof_q).
+void cell_positions(const ComplexMatrix& a, const mesh::Mesh& m, std::size_t c, int d, long* dof, long* pos) {
+  const int n = m.npc();
+  const int nd = n * d;
+  const int* v = m.cell(c);
+  for (int k = 0; k < n; ++k)
+    for (int j = 0; j < d; ++j) dof[d * k + j] = static_cast<long>(d) * v[k] + j;
+  const long* outer = a.outerIndexPtr();
+  const long* inner = a.innerIndexPtr();
+  for (int q = 0; q < nd; ++q) {
+    const long* b = inner + outer[dof[q]];
+    const long* e = inner + outer[dof[q] + 1];
+    for (int p = 0; p < nd; ++p) pos[p * nd + q] = std::lower_bound(b, e, dof[p]) - inner;
+  }
+}
+
+inline void atomic_add(Complex* values, long pos, Complex v) {
+  double* d = reinterpret_cast<double*>(values + pos);
+#pragma omp atomic
+  d[0] += v.real();
+#pragma omp atomic
+  d[1] += v.imag();
+}
+
+struct LayerCell {
+  std::size_t cell;
+  std::vector<double> ke, me;
+  std::vector<char> on_boundary;  // per local node: on Γ (b) rather than outside it (e)
+  double damping;
+};
+
+// Everything shared by every (frequency, model) solve.
+struct Setup {
+  const HarmonicProblem* p = nullptr;
+  const mesh::Mesh* m = nullptr;
+  int d = 2;
+  long nd = 0;
+  PmlLayout pml;
+  std::vector<char> pml_cell;
+  std::vector<std::size_t> pml_cells, void_cells;
+  ComplexMatrix pattern;
+  std::vector<long> diag_pos;
+  std::vector<Complex> kstar;  // Σ (1 + 2iξ) K_e over the unstretched cells, on the pattern
+  std::vector<double> mass;    // Σ M_e over the unstretched cells
+  std::vector<char> fixed_ref, fixed_void;
+  // Sources.
+  long force_dof = -1;
+  std::array<double, 3> force_dir{0, 0, 0};
+  std::vector<LayerCell> layer_cells;
+  std::vector<char> inside;    // per node: in the DRM box (total field)
+  std::vector<char> physical;  // per node: belongs to a cell outside the PML
+  int wave_dof = 0;
+  std::vector<int> outputs;
+};
+
+const HarmonicLayer& layer_of(const Setup& s, std::size_t c) {
+  return s.p->layers[static_cast<std::size_t>(s.m->layer[c])];
+}
+
+std::vector<char> outer_fixed(const mesh::Mesh& m, int d) {
+  std::vector<char> fixed(static_cast<std::size_t>(d) * m.n_nodes(), 0);
+  const int nn = mesh::nodes_per_facet(m.type);
+  for (const mesh::Facet& f : m.facets) {
+    if (f.kind == mesh::FacetKind::surface || f.kind == mesh::FacetKind::void_wall) continue;
+    for (int a = 0; a < nn; ++a)
+      for (int j = 0; j < d; ++j) fixed[static_cast<std::size_t>(d * f.nodes[a] + j)] = 1;
+  }
+  return fixed;
+}
+
+void setup_drm(Setup& s) {
+  const HarmonicProblem& p = *s.p;
+  const mesh::Mesh& m = *s.m;
+  const std::size_t nc = m.n_cells(), nn = m.n_nodes();
+  const bool three_d = m.dim() == 3;
+  DrmBox box = p.box;
+  if (box.half_width <= 0 || box.depth <= 0 || (three_d && box.half_length <= 0)) {
+    double h = 0;
+    for (std::size_t c = 0; c < nc; ++c)
+      if (!s.pml_cell[c]) h = std::max(h, largest_edge(m, c));
+    const double edge_x = s.pml.thickness > 0 ? std::min(-s.pml.x_lo, s.pml.x_hi) : std::min(-m.x_min, m.x_max);
+    const double edge_y = s.pml.thickness > 0 ? std::min(-s.pml.y_lo, s.pml.y_hi) : std::min(-m.y_min, m.y_max);
+    const double edge_z = m.z_max - (s.pml.thickness > 0 ? s.pml.z_lo : m.z_min);
+    if (box.half_width <= 0) box.half_width = edge_x - 2 * h;
+    if (three_d && box.half_length <= 0) box.half_length = edge_y - 2 * h;
+    if (box.depth <= 0) box.depth = edge_z - 2 * h;
+  }
+  std::vector<char> cell_in(nc, 0), node_in(nn, 0), node_out(nn, 0);
+  for (std::size_t c = 0; c < nc; ++c) {
+    const auto g = corner_centroid(m, c);
+    cell_in[c] = std::abs(g[0]) < box.half_width && (!three_d || std::abs(g[1]) < box.half_length) &&
+                 m.z_max - g[2] < box.depth;
+    const int* v = m.cell(c);
+    for (int a = 0; a < m.npc(); ++a) (cell_in[c] ? node_in : node_out)[static_cast<std::size_t>(v[a])] = 1;
+  }
+  s.inside = node_in;
+  // Layer tops for the consistency check of the tags.
+  std::vector<double> top(p.layers.size() + 1, 0);
+  for (std::size_t j = 0; j < p.layers.size(); ++j)
+    top[j + 1] = j + 1 < p.layers.size() ? top[j] + p.layers[j].thickness : std::numeric_limits<double>::infinity();
+  for (std::size_t c = 0; c < nc; ++c) {
+    const int* v = m.cell(c);
+    bool touches = false;
+    for (int a = 0; a < m.npc(); ++a) touches |= node_in[static_cast<std::size_t>(v[a])] && node_out[static_cast<std::size_t>(v[a])];
+    if (m.void_id[c] >= 0 && (!cell_in[c] || touches))
+      throw std::invalid_argument("harmonic: void " + std::to_string(m.void_id[c]) +
+                                  " reaches the boundary of the DRM box: enlarge the box or the block");
+    if (cell_in[c] || !touches) continue;
+    if (s.pml_cell[c])
+      throw std::invalid_argument("harmonic: the DRM box touches the PML band: make the box smaller");
+    const auto g = corner_centroid(m, c);
+    const double depth = m.z_max - g[2];
+    const auto lj = static_cast<std::size_t>(m.layer[c]);
+    const double tol = 1e-6 * (m.z_max - m.z_min);
+    if (depth < top[lj] - tol || depth > top[lj + 1] + tol)
+      throw std::invalid_argument("harmonic: the layer thicknesses do not match the mesh's layer tags (cell " +
+                                  std::to_string(c) + ")");
+    LayerCell lc;
+    lc.cell = c;
+    const int ndof = m.npc() * s.d;
+    lc.ke.resize(static_cast<std::size_t>(ndof * ndof));
+    lc.me.resize(lc.ke.size());
+    dynamic_parts(m, c, layer_of(s, c).elastic, p.kinematics, lc.ke, lc.me);
+    lc.damping = layer_of(s, c).damping;
+    for (int a = 0; a < m.npc(); ++a) {
+      const auto node = static_cast<std::size_t>(v[a]);
+      lc.on_boundary.push_back(node_in[node]);
+      for (int j = 0; j < s.d; ++j)
+        if (s.fixed_ref[node * static_cast<std::size_t>(s.d) + static_cast<std::size_t>(j)])
+          throw std::invalid_argument("harmonic: the DRM box reaches the fixed outer boundary");
+    }
+    s.layer_cells.push_back(std::move(lc));
+  }
+  if (s.layer_cells.empty()) throw std::invalid_argument("harmonic: the DRM box is empty or covers the whole block");
+  const bool s_wave = p.wave.type == IncidentWave::s;
+  if (p.wave.polarization < 0 || p.wave.polarization > 1)
+    throw std::invalid_argument("harmonic: plane-wave polarization must be 0 (x) or 1 (y)");
+  s.wave_dof = s_wave ? (three_d ? p.wave.polarization : 0) : vertical_dof(p.kinematics);
+}
+
+void setup_force(Setup& s, HarmonicResult& r) {
+  const HarmonicProblem& p = *s.p;
+  const mesh::Mesh& m = *s.m;
+  std::vector<char> usable(m.n_nodes(), 0);
+  for (std::size_t c = 0; c < m.n_cells(); ++c)
+    if (!s.pml_cell[c] && m.void_id[c] < 0)
+      for (int a = 0; a < m.npc(); ++a) usable[static_cast<std::size_t>(m.cell(c)[a])] = 1;
+  double best = std::numeric_limits<double>::infinity();
+  for (std::size_t n = 0; n < m.n_nodes(); ++n) {
+    if (!usable[n]) continue;
+    const auto& x = m.nodes[n];
+    const double dist = std::hypot(x[0] - p.force.point[0], m.dim() == 3 ? x[1] - p.force.point[1] : 0.0,
+                                   x[2] - p.force.point[2]);
+    if (dist < best) {
+      best = dist;
+      r.force_node = static_cast<int>(n);
+    }
+  }
+  if (r.force_node < 0) throw std::invalid_argument("harmonic: no node for the point force");
+  r.force_offset = best;
+  const auto& dir = p.force.direction;
+  const double len = m.dim() == 3 ? std::hypot(dir[0], dir[1], dir[2]) : std::hypot(dir[0], dir[2]);
+  if (!(len > 0)) throw std::invalid_argument("harmonic: point-force direction is zero");
+  s.force_dir = {dir[0] / len, m.dim() == 3 ? dir[1] / len : 0.0, dir[2] / len};
+  s.force_dof = static_cast<long>(s.d) * r.force_node;
+  for (int j = 0; j < s.d; ++j)
+    if (s.fixed_ref[static_cast<std::size_t>(s.force_dof + j)])
+      throw std::invalid_argument("harmonic: the point force acts on a fixed node");
+}
+
+ComplexVector right_hand_side(const Setup& s, double omega) {
+  const HarmonicProblem& p = *s.p;
+  const mesh::Mesh& m = *s.m;
+  ComplexVector f = ComplexVector::Zero(s.nd);
+  if (p.source == HarmonicProblem::Source::point_force) {
+    const double comp[3] = {s.force_dir[0], s.d == 3 ? s.force_dir[1] : s.force_dir[2], s.force_dir[2]};
+    for (int j = 0; j < s.d; ++j) f[s.force_dof + j] = p.force.amplitude * comp[j];
+    return f;
+  }
+  // Domain reduction method: f_b = −S_be u⁰_e, f_e = +S_eb u⁰_b on each cell of the layer.
+  const VerticalColumn column(p.layers, p.wave.type, omega, p.wave.amplitude);
+  const int npc = m.npc();
+  const int nd = npc * s.d;
+  std::vector<Complex> u0(static_cast<std::size_t>(nd)), fe(static_cast<std::size_t>(nd));
+  for (const LayerCell& lc : s.layer_cells) {
+    const int* v = m.cell(lc.cell);
+    std::fill(u0.begin(), u0.end(), Complex(0.0));
+    for (int a = 0; a < npc; ++a)
+      u0[static_cast<std::size_t>(s.d * a + s.wave_dof)] = column.displacement(m.z_max - m.nodes[v[a]][2]);
+    const Complex fac = hysteretic_factor(lc.damping);
+    const double w2 = omega * omega;
+    for (int r = 0; r < nd; ++r) {
+      const bool rb = lc.on_boundary[static_cast<std::size_t>(r / s.d)];
+      Complex sum = 0;
+      for (int c = 0; c < nd; ++c) {
+        if (lc.on_boundary[static_cast<std::size_t>(c / s.d)] == rb) continue;
+        const auto k = static_cast<std::size_t>(r * nd + c);
+        sum += (fac * lc.ke[k] - w2 * lc.me[k]) * u0[static_cast<std::size_t>(c)];
+      }
+      fe[static_cast<std::size_t>(r)] = rb ? -sum : sum;
+    }
+    for (int a = 0; a < npc; ++a)
+      for (int j = 0; j < s.d; ++j) f[static_cast<long>(s.d) * v[a] + j] += fe[static_cast<std::size_t>(s.d * a + j)];
+  }
+  return f;
+}
+
+// S(ω) of one model into `a` (the shared pattern), constrained.
+void assemble_model(const Setup& s, double omega, bool voided, ComplexMatrix& a) {
+  const mesh::Mesh& m = *s.m;
+  const HarmonicProblem& p = *s.p;
+  Complex* vals = a.valuePtr();
+  const long nnz = a.nonZeros();
+  const double w2 = omega * omega;
+#pragma omp parallel for schedule(static)
+  for (long k = 0; k < nnz; ++k) vals[k] = s.kstar[static_cast<std::size_t>(k)] - w2 * s.mass[static_cast<std::size_t>(k)];
+  const int nd = m.npc() * s.d;
+  const long n_pml = static_cast<long>(s.pml_cells.size());
+#pragma omp parallel
+  {
+    std::vector<Complex> se(static_cast<std::size_t>(nd * nd));
+    std::vector<long> dof(static_cast<std::size_t>(nd)), pos(static_cast<std::size_t>(nd * nd));
+#pragma omp for schedule(dynamic, 256)
+    for (long i = 0; i < n_pml; ++i) {
+      const std::size_t c = s.pml_cells[static_cast<std::size_t>(i)];
+      const HarmonicLayer& l = layer_of(s, c);
+      dynamic_stiffness(m, c, l.elastic, l.damping, p.kinematics, omega, &s.pml, se);
+      cell_positions(a, m, c, s.d, dof.data(), pos.data());
+      for (int k = 0; k < nd * nd; ++k) atomic_add(vals, pos[static_cast<std::size_t>(k)], se[static_cast<std::size_t>(k)]);
+    }
+  }
+  if (voided) {
+    std::vector<double> ke(static_cast<std::size_t>(nd * nd)), me(ke.size());
+    std::vector<long> dof(static_cast<std::size_t>(nd)), pos(ke.size());
+    for (std::size_t c : s.void_cells) {
+      const HarmonicLayer& l = layer_of(s, c);
+      dynamic_parts(m, c, l.elastic, p.kinematics, ke, me);
+      cell_positions(a, m, c, s.d, dof.data(), pos.data());
+      const Complex fac = hysteretic_factor(l.damping);
+      for (std::size_t k = 0; k < ke.size(); ++k) vals[pos[k]] -= fac * ke[k] - w2 * me[k];
+    }
+  }
+  // Constraints that keep the pattern: fixed rows and columns zeroed, a unit-scale diagonal.
+  const std::vector<char>& fixed = voided ? s.fixed_void : s.fixed_ref;
+  double sum = 0;
+  long count = 0;
+  for (long j = 0; j < s.nd; ++j)
+    if (!fixed[static_cast<std::size_t>(j)]) {
+      sum += std::abs(vals[s.diag_pos[static_cast<std::size_t>(j)]]);
+      ++count;
+    }
+  const double scale = count ? sum / static_cast<double>(count) : 1.0;
+  const long* outer = a.outerIndexPtr();
+  const long* inner = a.innerIndexPtr();
+#pragma omp parallel for schedule(static)
+  for (long j = 0; j < s.nd; ++j) {
+    const bool fj = fixed[static_cast<std::size_t>(j)];
+    for (long k = outer[j]; k < outer[j + 1]; ++k)
+      if (fj || fixed[static_cast<std::size_t>(inner[k])]) vals[k] = inner[k] == j ? Complex(scale) : Complex(0.0);
+  }
+}
+
+struct Unit {
+  std::size_t freq;
+  bool voided;
+};
+
+// One (frequency, model) solve with the given solver and matrix storage.
+void solve_unit(const Setup& s, const Unit& u, ComplexLu& lu, ComplexMatrix& a, HarmonicResult& r) {
+  const auto t0 = Clock::now();
+  const HarmonicProblem& p = *s.p;
+  const double omega = 2 * std::numbers::pi * p.frequencies_hz[u.freq];
+  assemble_model(s, omega, u.voided, a);
+  ComplexVector f = right_hand_side(s, omega);
+  const std::vector<char>& fixed = u.voided ? s.fixed_void : s.fixed_ref;
+  for (long j = 0; j < s.nd; ++j)
+    if (fixed[static_cast<std::size_t>(j)]) f[j] = 0;
+  if (!lu.analysed()) lu.analyze(a);
+  ComplexSolution sol;
+  try {
+    lu.factorize(a);
+    sol = lu.solve_checked(f, p.max_residual);
+  } catch (const ComplexSolveError& e) {
+    std::ostringstream os;
+    os << "harmonic " << (u.voided ? "model with voids" : "model without voids") << " at "
+       << p.frequencies_hz[u.freq] << " Hz: " << e.what();
+    throw SolveFailure(os.str());
+  }
+  // Keep the output nodes; outside the DRM box add the free field back to the scattered field.
+  const mesh::Mesh& m = *s.m;
+  ComplexVector out(static_cast<long>(s.outputs.size()) * s.d);
+  std::unique_ptr<VerticalColumn> column;
+  if (p.source == HarmonicProblem::Source::plane_wave)
+    column = std::make_unique<VerticalColumn>(p.layers, p.wave.type, omega, p.wave.amplitude);
+  for (std::size_t k = 0; k < s.outputs.size(); ++k) {
+    const auto n = static_cast<std::size_t>(s.outputs[k]);
+    for (int j = 0; j < s.d; ++j) out[static_cast<long>(k) * s.d + j] = sol.x[static_cast<long>(n) * s.d + j];
+    if (column && !s.inside[n] && s.physical[n])
+      out[static_cast<long>(k) * s.d + s.wave_dof] += column->displacement(m.z_max - m.nodes[n][2]);
+  }
+  HarmonicModel& model = u.voided ? r.voided : r.reference;
+  model.u[u.freq] = std::move(out);
+  model.residual[u.freq] = sol.residual;
+  model.seconds[u.freq] = seconds_since(t0);
+  model.factor_seconds[u.freq] = lu.factorize_seconds();
+}
+
+// Validation, band, constraints, sources, pattern and the frequency-independent parts.
+void prepare(const HarmonicProblem& p, Setup& s, HarmonicResult& r) {
+  if (!p.mesh) throw std::invalid_argument("solve_harmonic: no mesh");
+  const mesh::Mesh& m = *p.mesh;
+  if (p.kinematics == Kinematics::axisymmetric)
+    throw std::invalid_argument("solve_harmonic: axisymmetric models are not supported (plane strain or 3D)");
+  if ((m.dim() == 3) != (p.kinematics == Kinematics::solid))
+    throw std::invalid_argument("solve_harmonic: mesh dimension and kinematics disagree");
+  for (int l : m.layer)
+    if (l < 0 || static_cast<std::size_t>(l) >= p.layers.size())
+      throw std::invalid_argument("solve_harmonic: a cell's layer has no properties");
+  if (p.frequencies_hz.empty()) throw std::invalid_argument("solve_harmonic: no frequencies");
+  for (double f : p.frequencies_hz)
+    if (!(f > 0)) throw std::invalid_argument("solve_harmonic: frequencies must be > 0");
+
+  s.p = &p;
+  s.m = &m;
+  s.d = dofs_per_node(p.kinematics);
+  s.nd = static_cast<long>(s.d) * static_cast<long>(m.n_nodes());
+  const std::size_t nc = m.n_cells();
+  r.frequencies_hz = p.frequencies_hz;
+  r.n_dofs = static_cast<std::size_t>(s.nd);
+
+  const double c_fast = fastest_p_speed(p.layers);
+  const double omega0 = p.pml_thickness > 0 ? pml_attenuation(p.pml_thickness, c_fast, p.pml_reflection, p.pml_order) : 0.0;
+  s.pml = pml_layout(m, p.pml_thickness, omega0, p.pml_order, p.pml_real_stretch);
+  r.pml = s.pml;
+  r.pml_reflection_normal = pml_reflection(s.pml, c_fast, 0);
+  r.pml_reflection_45 = pml_reflection(s.pml, c_fast, std::numbers::pi / 4);
+  double vs_max = 0;
+  for (const HarmonicLayer& l : p.layers)
+    vs_max = std::max(vs_max, std::sqrt(l.elastic.young / (2 * (1 + l.elastic.poisson)) / l.elastic.density));
+  r.pml_wavelengths = p.pml_thickness * *std::min_element(p.frequencies_hz.begin(), p.frequencies_hz.end()) / vs_max;
+  s.pml_cell.assign(nc, 0);
+  for (std::size_t c = 0; c < nc; ++c) {
+    s.pml_cell[c] = in_pml(s.pml, corner_centroid(m, c));
+    if (s.pml_cell[c]) s.pml_cells.push_back(c);
+    if (m.void_id[c] >= 0) {
+      if (s.pml_cell[c]) throw std::invalid_argument("harmonic: a void lies in the PML band");
+      s.void_cells.push_back(c);
+    }
+  }
+  r.pml_cell = s.pml_cell;
+  s.physical.assign(m.n_nodes(), 0);
+  for (std::size_t c = 0; c < nc; ++c)
+    if (!s.pml_cell[c])
+      for (int a = 0; a < m.npc(); ++a) s.physical[static_cast<std::size_t>(m.cell(c)[a])] = 1;
+
+  // Constraints: the outer boundary (sides, bottom) fixed; in the model with voids the nodes that
+  // touch no active cell (void interiors) fixed as well.
+  r.reference.active.assign(nc, 1);
+  r.voided.active.resize(nc);
+  for (std::size_t c = 0; c < nc; ++c) r.voided.active[c] = m.void_id[c] < 0;
+  s.fixed_ref = outer_fixed(m, s.d);
+  s.fixed_void = s.fixed_ref;
+  {
+    std::vector<char> touched(m.n_nodes(), 0);
+    for (std::size_t c = 0; c < nc; ++c)
+      if (r.voided.active[c])
+        for (int a = 0; a < m.npc(); ++a) touched[static_cast<std::size_t>(m.cell(c)[a])] = 1;
+    for (std::size_t n = 0; n < m.n_nodes(); ++n)
+      if (!touched[n])
+        for (int j = 0; j < s.d; ++j) s.fixed_void[n * static_cast<std::size_t>(s.d) + static_cast<std::size_t>(j)] = 1;
+  }
+
+  if (p.source == HarmonicProblem::Source::plane_wave) {
+    setup_drm(s);
+    r.drm_inside = s.inside;
+  } else {
+    setup_force(s, r);
+  }
+  if (p.output_nodes.empty()) {
+    s.outputs.resize(m.n_nodes());
+    for (std::size_t n = 0; n < m.n_nodes(); ++n) s.outputs[n] = static_cast<int>(n);
+  } else {
+    s.outputs = p.output_nodes;
+    for (int n : s.outputs)
+      if (n < 0 || static_cast<std::size_t>(n) >= m.n_nodes()) throw std::invalid_argument("harmonic: bad output node");
+  }
+  r.output_nodes = s.outputs;
+
+  // Pattern (shared by every frequency and both models) and the frequency-independent parts.
+  const auto t_setup = Clock::now();
+  s.pattern = full_pattern(stiffness_pattern(m));
+  const long nnz = s.pattern.nonZeros();
+  s.diag_pos.resize(static_cast<std::size_t>(s.nd));
+  for (long j = 0; j < s.nd; ++j) {
+    const long* b = s.pattern.innerIndexPtr() + s.pattern.outerIndexPtr()[j];
+    const long* e = s.pattern.innerIndexPtr() + s.pattern.outerIndexPtr()[j + 1];
+    s.diag_pos[static_cast<std::size_t>(j)] = std::lower_bound(b, e, j) - s.pattern.innerIndexPtr();
+  }
+  s.kstar.assign(static_cast<std::size_t>(nnz), Complex(0.0));
+  s.mass.assign(static_cast<std::size_t>(nnz), 0.0);
+  {
+    const int nd = m.npc() * s.d;
+    Complex* kv = s.kstar.data();
+    double* mv = s.mass.data();
+#pragma omp parallel
+    {
+      std::vector<double> ke(static_cast<std::size_t>(nd * nd)), me(ke.size());
+      std::vector<long> dof(static_cast<std::size_t>(nd)), pos(ke.size());
+#pragma omp for schedule(dynamic, 512)
+      for (long cl = 0; cl < static_cast<long>(nc); ++cl) {
+        const auto c = static_cast<std::size_t>(cl);
+        if (s.pml_cell[c]) continue;
+        const HarmonicLayer& l = layer_of(s, c);
+        dynamic_parts(m, c, l.elastic, p.kinematics, ke, me);
+        cell_positions(s.pattern, m, c, s.d, dof.data(), pos.data());
+        const Complex fac = hysteretic_factor(l.damping);
+        for (std::size_t k = 0; k < ke.size(); ++k) {
+          atomic_add(kv, pos[k], fac * ke[k]);
+#pragma omp atomic
+          mv[pos[k]] += me[k];
+        }
+      }
+    }
+  }
+  r.setup_seconds = seconds_since(t_setup);
+}
+
+double available_bytes() {
+  std::ifstream in("/proc/meminfo");
+  std::string key;
+  double value = 0;
+  std::string unit;
+  while (in >> key >> value >> unit)
+    if (key == "MemAvailable:") return value * 1024;
+  return 0;
+}
+
+}  // namespace
+
+HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress) {
+  const auto t_start = Clock::now();
+  auto report = [&](std::string_view step, double frac) {
+    if (progress) progress(step, frac);
+  };
+  Setup s;
+  HarmonicResult r;
+  report("pattern", 0);
+  prepare(p, s, r);
+  report("pattern", 1);
+  const long nnz = s.pattern.nonZeros();
+  const std::size_t nf = p.frequencies_hz.size();
+  for (HarmonicModel* model : {&r.reference, &r.voided}) {
+    if (model == &r.voided && !p.with_voids) break;
+    model->u.resize(nf);
+    model->residual.assign(nf, 0.0);
+    model->seconds.assign(nf, 0.0);
+    model->factor_seconds.assign(nf, 0.0);
+  }
+  std::vector<Unit> units;
+  for (std::size_t f = 0; f < nf; ++f) {
+    units.push_back({f, false});
+    if (p.with_voids) units.push_back({f, true});
+  }
+
+  std::vector<std::unique_ptr<ComplexLu>> solvers;
+  std::vector<ComplexMatrix> matrices;
+  solvers.push_back(std::make_unique<ComplexLu>(p.ordering));
+  matrices.push_back(s.pattern);
+  std::size_t done = 0;
+  auto tick = [&] {
+    ++done;
+    report("harmonic", static_cast<double>(done) / static_cast<double>(units.size()));
+  };
+
+  // Frequencies in parallel, one factorisation per thread and a single-threaded BLAS, was faster
+  // on 2 cores than one factorisation at a time with a multithreaded BLAS at every size measured,
+  // and a single solve was faster with one BLAS thread too (docs/theory.md); only
+  // FrequencyLoop::sequential keeps the BLAS's own threads. The first solve runs alone: it
+  // measures the factor's memory, and parallel runs only if one factor per thread fits in 60 %
+  // of the available memory (FrequencyLoop::parallel skips that check).
+  const int n_threads = std::min<int>(omp_get_max_threads(), static_cast<int>(units.size()));
+  const bool single_blas = p.loop != FrequencyLoop::sequential;
+  const bool want_parallel = single_blas && n_threads > 1;
+  const int blas_before = single_blas ? set_blas_threads(1) : 0;
+  struct BlasRestore {
+    int n;
+    ~BlasRestore() {
+      if (n > 0) set_blas_threads(n);
+    }
+  } restore{blas_before};
+  std::size_t next = 0;
+  bool parallel = false;
+  if (want_parallel) {
+    solve_unit(s, units[0], *solvers[0], matrices[0], r);
+    tick();
+    next = 1;
+    const double need = n_threads * (solvers[0]->peak_bytes() + 24.0 * static_cast<double>(nnz));
+    const double avail = available_bytes();
+    parallel = p.loop == FrequencyLoop::parallel || avail <= 0 || need < 0.6 * avail;
+  }
+  if (!parallel) {
+    r.loop = single_blas ? "sequential, single-threaded BLAS" : "sequential, multithreaded BLAS";
+    for (std::size_t i = next; i < units.size(); ++i) {
+      solve_unit(s, units[i], *solvers[0], matrices[0], r);
+      tick();
+    }
+  } else {
+    r.loop = "parallel (" + std::to_string(n_threads) + " threads)";
+    for (int t = 1; t < n_threads; ++t) {
+      solvers.push_back(std::make_unique<ComplexLu>(p.ordering));
+      matrices.push_back(s.pattern);
+    }
+    std::exception_ptr error;
+    const long n_units = static_cast<long>(units.size());
+#pragma omp parallel num_threads(n_threads)
+    {
+      const auto t = static_cast<std::size_t>(omp_get_thread_num());
+#pragma omp for schedule(dynamic, 1)
+      for (long i = static_cast<long>(next); i < n_units; ++i) {
+        try {
+          solve_unit(s, units[static_cast<std::size_t>(i)], *solvers[t], matrices[t], r);
+#pragma omp critical(harmonic_progress)
+          tick();
+        } catch (...) {
+#pragma omp critical(harmonic_error)
+          if (!error) error = std::current_exception();
+        }
+      }
+    }
+    if (error) std::rethrow_exception(error);
+  }
+  for (const auto& sv : solvers) {
+    r.analyse_seconds += sv->analyse_seconds();
+    r.factor_nonzeros = std::max(r.factor_nonzeros, sv->factor_nonzeros());
+    r.peak_bytes = std::max(r.peak_bytes, sv->peak_bytes());
+  }
+  r.total_seconds = seconds_since(t_start);
+  return r;
+}
+
+HarmonicSystem harmonic_system(const HarmonicProblem& p, double frequency_hz, bool voided) {
+  Setup s;
+  HarmonicResult r;
+  prepare(p, s, r);
+  HarmonicSystem sys;
+  const double omega = 2 * std::numbers::pi * frequency_hz;
+  sys.matrix = s.pattern;
+  assemble_model(s, omega, voided, sys.matrix);
+  sys.rhs = right_hand_side(s, omega);
+  const std::vector<char>& fixed = voided ? s.fixed_void : s.fixed_ref;
+  for (long j = 0; j < s.nd; ++j)
+    if (fixed[static_cast<std::size_t>(j)]) sys.rhs[j] = 0;
+  return sys;
+}
+
+}  // namespace voidsign::solver
