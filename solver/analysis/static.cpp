@@ -139,6 +139,8 @@ void add_samples(const mesh::Mesh& m, const mesh::Facet& f, int d, const std::ve
 }
 
 // Fixed dofs from the outer boundary conditions.
+}  // namespace
+
 std::vector<char> outer_constraints(const StaticProblem& p) {
   const mesh::Mesh& m = *p.mesh;
   const int d = dofs_per_node(p.kinematics);
@@ -170,6 +172,8 @@ std::vector<char> outer_constraints(const StaticProblem& p) {
     }
   return fixed;
 }
+
+namespace {
 
 struct InitialCtx {
   const InitialStress* fn;
@@ -440,7 +444,6 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress) {
     solver->set_variable_nodes(wall, inner);
   }
   solver->analyze(k_ref);
-  res.solver = solver->name();
   res.timings.analyse = seconds_since(t0);
 
   auto factor = [&](const SparseMatrix& k, const char* name, bool variant) {
@@ -481,7 +484,6 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress) {
 
   // Model with voids.
   factor(k_void, "with voids", true);
-  if (!solver->variant_method.empty()) res.solver += "; model with voids: " + solver->variant_method;
   ts = Clock::now();
   Vector g = Vector::Zero(nd);
   for (const Loss& l : losses) {
@@ -549,6 +551,9 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress) {
     throw SolveFailure(residual_message("model with voids", res.voided.residual));
 
   res.iterations = solver->total_iterations;
+  // Named after the set-up: the iterative solver knows its method only then.
+  res.solver = solver->name();
+  if (!solver->variant_method.empty()) res.solver += "; model with voids: " + solver->variant_method;
   report("stresses", 0);
   centroid_fields(p, res.reference);
   centroid_fields(p, res.voided);

@@ -120,6 +120,10 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress = {})
 /// field evaluated at the node itself). Induced stress; add σ₀ for the total.
 std::vector<Sym6> nodal_stress(const StaticProblem& p, const ModelSolution& s);
 
+/// Per dof (non-zero = held at zero): the supports of `p.boundaries` on the block's outer faces
+/// (in axisymmetry u_r = 0 on the axis, always). Void interiors are not included.
+std::vector<char> outer_constraints(const StaticProblem& p);
+
 /// Displacement (x, y, z) of node n from a solution vector in the problem's dof layout.
 std::array<double, 3> node_displacement(const StaticProblem& p, const Vector& u, std::size_t n);
 

@@ -243,4 +243,12 @@ TEST_CASE("a tunnel through the block: the model without voids keeps its support
   // At rest up to the quadrature imbalance of curved cells (~1e-8 m); the anomaly is ~1e-4 m.
   CHECK(r.reference.u.cwiseAbs().maxCoeff() < 1e-7);
   CHECK((r.voided.u - r.reference.u).cwiseAbs().maxCoeff() > 1e-6);
+  CHECK(r.solver.find("CHOLMOD") != std::string::npos);
+  // The iterative solver gives the same anomaly, and names itself (after its set-up).
+  p.solver = solver::SolverChoice::iterative;
+  const auto it = solver::solve_static(p);
+  CHECK(!it.solver.empty());
+  CHECK(it.iterations > 0);
+  const solver::Vector da = r.voided.u - r.reference.u, db = it.voided.u - it.reference.u;
+  CHECK((da - db).norm() < 1e-6 * da.norm());
 }
