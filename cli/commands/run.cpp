@@ -5,9 +5,11 @@
 #include <cstdio>
 #include <ctime>
 #include <iostream>
+#include <optional>
 #include <sstream>
 
 #include "cli/commands/commands.hpp"
+#include "cli/commands/dynamic_run.hpp"
 #include "cli/commands/model_setup.hpp"
 #include "cli/commands/static_run.hpp"
 #include "cli/errors.hpp"
@@ -78,6 +80,35 @@ void print_peaks(const StaticRun& run, const fs::path& dir) {
   std::printf("Caution: %s\n", caution_text);
 }
 
+
+void print_modal(const ModalRun& m, const fs::path& dir) {
+  std::printf("\nNatural modes (with voids / matched mode without voids):\n");
+  for (std::size_t j = 0; j < m.voided.freq_hz.size(); ++j) {
+    const int r = m.match[j];
+    std::printf("  mode %2zu  %10.4f Hz  %10.4f Hz  (%s, MAC %.2f)  near-void energy %.2f%s\n", j + 1, m.voided.freq_hz[j],
+                r >= 0 ? m.reference.freq_hz[static_cast<std::size_t>(r)] : 0.0, m.by_shape[j] ? "by shape" : "by order",
+                m.mac[j], m.near_void_energy[j], m.localised[j] ? "  LOCALISED at a void" : "");
+  }
+  std::printf("Results in %s/modal/ (modes.csv, modes.pvd)\n", dir.string().c_str());
+}
+
+void print_harmonic(const HarmonicRun& h, const mesh::Mesh& mesh, const fs::path& dir) {
+  const auto peaks = harmonic_peaks(h, mesh);
+  const HarmonicPeak* top = nullptr;
+  for (const auto& p : peaks)
+    if (!top || p.anomaly > top->anomaly) top = &p;
+  double res = 0;
+  for (double v : h.result.reference.residual) res = std::max(res, v);
+  for (double v : h.result.voided.residual) res = std::max(res, v);
+  std::printf("\nHarmonic signature (with voids minus without), ground surface, %zu frequencies %.4g-%.4g Hz:\n",
+              h.result.frequencies_hz.size(), h.result.frequencies_hz.front(), h.result.frequencies_hz.back());
+  if (top)
+    std::printf("  %-34s %12.4g m    at %.4g Hz, x = %.2f m%s (without voids there: %.4g m)\n", "largest |anomaly|", top->anomaly,
+                top->f_hz, top->x, mesh.dim() == 3 ? (", y = " + std::to_string(top->y)).c_str() : "", top->reference);
+  std::printf("  %-34s %12.2g\n", "solve residual (worst)", res);
+  std::printf("Results in %s/harmonic/ (surface.csv, fields.pvd)\n", dir.string().c_str());
+}
+
 }  // namespace
 
 fs::path output_dir_for(const RunOptions& opt, const fs::path& scenario_dir, const fs::path& from_file) {
@@ -92,13 +123,30 @@ int run_command(const RunOptions& opt) {
   const fs::path dir = output_dir_for(opt, s.file.parent_path(), s.output_dir);
   if (fs::exists(dir) && !(fs::is_directory(dir) && fs::is_empty(dir)) && !opt.force)
     throw InputError(dir.string() + ": output folder exists and is not empty; use --force to replace it");
-  if (!s.analyses.static_)
-    throw InputError(s.file.string() + ": key 'analyses': no analysis this version runs was requested (add 'static: {}')");
+  if (!s.analyses.static_ && !s.analyses.modal && !s.analyses.harmonic)
+    throw InputError(s.file.string() +
+                     ": key 'analyses': no analysis this version runs was requested (add 'static: {}', 'modal: {}' or 'harmonic: ...')");
   for (const auto& w : s.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
   check_budget(s, estimate_run(s));
 
   ProgressLine progress(ProgressLine::stderr_is_terminal());
-  StaticRun run = run_static(s, &progress);
+  // The static analysis builds the mesh; without it the mesh is built alone. Every analysis uses it.
+  StaticRun run;
+  if (s.analyses.static_) {
+    run = run_static(s, &progress);
+  } else {
+    const auto t0 = std::chrono::steady_clock::now();
+    run.mesh = build_checked_mesh(s, &run.quality, &progress);
+    run.mesh_seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
+    run.warnings = model_warnings(s);
+  }
+  std::optional<ModalRun> modal;
+  std::optional<HarmonicRun> harmonic;
+  if (s.analyses.modal) modal = run_modal(s, *run.mesh, &progress);
+  if (s.analyses.harmonic) {
+    harmonic = run_harmonic(s, *run.mesh, &progress);
+    run.warnings.insert(run.warnings.end(), harmonic->warnings.begin(), harmonic->warnings.end());
+  }
   for (const auto& w : run.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
 
   // Everything goes to a staging folder that replaces DIR only when complete.
@@ -108,7 +156,9 @@ int run_command(const RunOptions& opt) {
   try {
     fs::remove_all(staging);
     fs::create_directories(staging);
-    write_static_outputs(run, s, staging);
+    if (s.analyses.static_) write_static_outputs(run, s, staging);
+    if (modal) write_modal_outputs(*modal, s, *run.mesh, staging);
+    if (harmonic) write_harmonic_outputs(*harmonic, s, *run.mesh, staging);
     nlohmann::json j;
     j["format"] = 1;
     j["tool_version"] = VOIDSIGN_VERSION;
@@ -117,7 +167,7 @@ int run_command(const RunOptions& opt) {
     j["date_utc"] = utc_now();
     j["title"] = s.title;
     j["model"] = model_name(s.model);
-    j["units"] = "SI: m, Pa, rad; z up, settlement negative; anomaly = with voids minus without";
+    j["units"] = "SI: m, Pa, rad, Hz, s; z up, settlement negative; anomaly = with voids minus without";
     j["mesh"] = {{"nodes", run.mesh->n_nodes()},
                  {"elements", run.mesh->n_cells()},
                  {"dofs", static_cast<std::size_t>(run.mesh->dim() == 3 ? 3 : 2) * run.mesh->n_nodes()},
@@ -127,7 +177,9 @@ int run_command(const RunOptions& opt) {
                  {"size", s.mesh.size},
                  {"near_void", s.mesh.near_void},
                  {"surface", s.mesh.surface}};
-    j["static"] = static_summary(run);
+    if (s.analyses.static_) j["static"] = static_summary(run);
+    if (modal) j["modal"] = modal_summary(*modal);
+    if (harmonic) j["harmonic"] = harmonic_summary(*harmonic, s, *run.mesh);
     j["detectability"] = nlohmann::json::array();
     std::vector<std::string> warnings = s.warnings;
     warnings.insert(warnings.end(), run.warnings.begin(), run.warnings.end());
@@ -140,6 +192,8 @@ int run_command(const RunOptions& opt) {
                       {"analyse", t.analyse},
                       {"factorize", t.factorize},
                       {"solve", t.analyse + t.factorize + t.solve},
+                      {"modal", modal ? modal->seconds : 0.0},
+                      {"harmonic", harmonic ? harmonic->result.total_seconds : 0.0},
                       {"write", write_s},
                       {"total", std::chrono::duration<double>(std::chrono::steady_clock::now() - t_start).count()}};
     write_text_atomic(staging / "summary.json", j.dump(2) + "\n");
@@ -156,7 +210,10 @@ int run_command(const RunOptions& opt) {
     throw;
   }
   progress.done();
-  print_peaks(run, dir);
+  if (s.analyses.static_) print_peaks(run, dir);
+  if (modal) print_modal(*modal, dir);
+  if (harmonic) print_harmonic(*harmonic, *run.mesh, dir);
+  if (!s.analyses.static_) std::printf("Caution: %s\n", caution_text);
   return exit_ok;
 }
 

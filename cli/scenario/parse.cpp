@@ -1263,6 +1263,138 @@ YAML::Node load_yaml(const Ctx& ctx, const std::string& text) {
   return docs[0];
 }
 
+
+// ---------------------------------------------------------------------------------------------
+// Dynamic analyses
+
+ModalAnalysis parse_modal(const Map& m) {
+  m.allow({"modes", "above-hz"});
+  ModalAnalysis a;
+  a.loc = m.self().loc();
+  if (auto f = m.get("modes")) {
+    a.modes = f->whole();
+    if (a.modes < 1 || a.modes > 500) f->fail("the number of modes must lie between 1 and 500, got " + std::to_string(a.modes));
+  }
+  if (auto f = m.get("above-hz")) a.shift_hz = f->non_negative();
+  return a;
+}
+
+std::vector<double> parse_frequencies(const Field& f) {
+  std::vector<double> out;
+  if (f.node.IsSequence()) {
+    for (const Field& item : f.list()) out.push_back(item.positive());
+    if (out.empty()) f.fail("the list of frequencies is empty");
+    std::sort(out.begin(), out.end());
+    out.erase(std::unique(out.begin(), out.end()), out.end());
+    return out;
+  }
+  const Map m = f.map();
+  m.allow({"min", "max", "count", "spacing"});
+  const Field fmin = m.need("min", "lowest frequency in Hz"), fmax = m.need("max", "highest frequency in Hz");
+  const double lo = fmin.positive(), hi = fmax.positive();
+  int count = 30;
+  if (auto fc = m.get("count")) {
+    count = fc->whole();
+    if (count < 1) fc->fail("the number of frequencies must be at least 1, got " + std::to_string(count));
+    if (count > 5000) fc->fail("at most 5000 frequencies, got " + std::to_string(count));
+  }
+  bool log = true;
+  if (auto fs = m.get("spacing")) log = fs->choice({"log", "linear"}, "spacing") == "log";
+  if (count == 1) {
+    if (hi < lo) fmax.fail("max (" + num(hi) + " Hz) must not be below min (" + num(lo) + " Hz)");
+    return {lo};
+  }
+  if (!(hi > lo)) fmax.fail("max (" + num(hi) + " Hz) must be greater than min (" + num(lo) + " Hz)");
+  for (int k = 0; k < count; ++k) {
+    const double t = static_cast<double>(k) / (count - 1);
+    out.push_back(log ? lo * std::pow(hi / lo, t) : lo + t * (hi - lo));
+  }
+  out.back() = hi;
+  return out;
+}
+
+HarmonicAnalysis parse_harmonic(const Map& m, bool three_d) {
+  m.allow({"frequencies", "excitation", "absorbing"});
+  HarmonicAnalysis a;
+  a.loc = m.self().loc();
+  a.frequencies_hz = parse_frequencies(m.need("frequencies", "for example {min: 0.5, max: 20, count: 40, spacing: log}"));
+  if (auto f = m.get("absorbing")) a.absorbing = f->positive();
+  const Field ef = m.need("excitation", "{wave: S, incidence: 0, amplitude: 1.0e-6} or {source: {x, depth, force}}");
+  const Map em = ef.map();
+  if (auto sf = em.get("source")) {
+    em.allow({"source"});
+    a.excitation = HarmonicAnalysis::Excitation::source;
+    const Map sm = sf->map();
+    sm.allow(three_d ? Strings{"x", "y", "depth", "force", "direction"} : Strings{"x", "depth", "force", "direction"});
+    a.source_x = sm.need("x").number();
+    if (three_d) a.source_y = sm.need("y").number();
+    a.source_depth = sm.need("depth", "0 for a force on the ground surface").non_negative();
+    a.force = sm.need("force", three_d ? "amplitude in N" : "amplitude in N per metre of length").positive();
+    if (auto df = sm.get("direction")) {
+      const auto items = df->list();
+      const std::size_t n = three_d ? 3 : 2;
+      if (items.size() != n)
+        df->fail(std::string("expected ") + (three_d ? "[dx, dy, dz]" : "[dx, dz]") + " (z up), found " +
+                 std::to_string(items.size()) + " value(s)");
+      std::array<double, 3> d{0, 0, 0};
+      d[0] = items[0].number();
+      if (three_d) d[1] = items[1].number();
+      d[2] = items[n - 1].number();
+      const double len = std::sqrt(d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
+      if (!(len > 0)) df->fail("the direction must not be zero");
+      a.direction = {d[0] / len, d[1] / len, d[2] / len};
+    }
+    return a;
+  }
+  em.allow(three_d ? Strings{"wave", "incidence", "amplitude", "polarization", "source"}
+                   : Strings{"wave", "incidence", "amplitude", "source"});
+  a.p_wave = em.need("wave", "S or P").choice({"S", "P"}, "wave type") == "P";
+  if (auto f = em.get("incidence")) {
+    const double inc = f->number();
+    if (inc != 0)
+      f->fail("only vertical incidence (0 degrees) is supported in this version, got " + num(inc) + " degrees");
+  }
+  if (auto f = em.get("amplitude")) a.amplitude = f->positive();
+  if (auto f = em.get("polarization")) {
+    if (a.p_wave) f->fail("a polarization applies to S waves only (a vertical P wave moves along z)");
+    a.polarization = f->choice({"x", "y"}, "polarization") == "y" ? 1 : 0;
+  }
+  return a;
+}
+
+// Elements per S wavelength at the highest frequency in the slowest layer, with the far-field
+// size as the element size (the mesher's largest): quadratic elements need 5, linear 10
+// (docs/scenario-format.md). Below the minimum: a warning; below half of it: an error.
+void check_resolution(const Field& f, Scenario& sc) {
+  HarmonicAnalysis& a = *sc.analyses.harmonic;
+  double vs_min = std::numeric_limits<double>::infinity();
+  std::string slowest;
+  for (const Layer& l : sc.layers) {
+    const Material& mat = sc.materials.at(l.material);
+    const double vs = std::sqrt(mat.young / (2 * (1 + mat.poisson)) / mat.density);
+    if (vs < vs_min) {
+      vs_min = vs;
+      slowest = l.material;
+    }
+  }
+  const double f_max = a.frequencies_hz.back();
+  const double lambda = vs_min / f_max, h = sc.mesh.size;
+  const double need = sc.mesh.order == 2 ? 5 : 10;
+  a.elements_per_wavelength = lambda / h;
+  if (a.elements_per_wavelength >= need) return;
+  char buf[400];
+  std::snprintf(buf, sizeof buf,
+                "at %g Hz the S wavelength in '%s' (Vs %.0f m/s) is %.3g m: %.2g element(s) of size %g m per "
+                "wavelength, fewer than the %g needed for %s elements (set mesh.size to %.3g m or less, or lower "
+                "the highest frequency to %.3g Hz)",
+                f_max, slowest.c_str(), vs_min, lambda, a.elements_per_wavelength, h, need,
+                sc.mesh.order == 2 ? "quadratic" : "linear", lambda / need, vs_min / (need * h));
+  const Map m = f.map();
+  const Field ff = *m.get("frequencies");
+  if (a.elements_per_wavelength < need / 2) ff.fail(std::string(buf) + "; below half of that the results are meaningless");
+  ff.warn(buf);
+}
+
 }  // namespace
 
 Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::path& file) {
@@ -1557,6 +1689,7 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
             "every displacement is zero");
 
   // analyses
+  std::optional<Field> harmonic_field;
   if (auto af = top.get("analyses")) {
     const Map am = af->map(true);
     am.allow({"static", "modal", "harmonic", "transient", "ambient"});
@@ -1566,14 +1699,22 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
       if (name == "static") {
         options.allow({});
         sc.analyses.static_ = true;
+      } else if (name == "modal") {
+        sc.analyses.modal = parse_modal(options);
+      } else if (name == "harmonic") {
+        if (axi)
+          f.fail("the harmonic analysis is not available for axisymmetric models: an incident plane wave is not "
+                 "axisymmetric (use model: plane-strain or 3d; modal works in all three)");
+        sc.analyses.harmonic = parse_harmonic(options, three_d);
+        harmonic_field = f;
       } else {
         sc.analyses.not_implemented.push_back(name);
         warn_at(ctx, f.key_mark, f.path,
                 "the " + name + " analysis is not implemented in this version; skipped");
       }
     }
-    if (!sc.analyses.static_)
-      af->warn("no analysis that this version runs (only static is implemented)");
+    if (!sc.analyses.static_ && !sc.analyses.modal && !sc.analyses.harmonic)
+      af->warn("no analysis that this version runs (static, modal and harmonic are implemented)");
   } else {
     sc.analyses.static_ = true;
   }
@@ -1640,6 +1781,8 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
       self.warn("the void is closer to a side of the domain (" + num(side_gap) +
                 " m) than one near-void element size (" + num(h) + " m)");
   }
+
+  if (harmonic_field) check_resolution(*harmonic_field, sc);
 
   // sensors, output
   if (auto sf = top.get("sensors")) {

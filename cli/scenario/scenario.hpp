@@ -95,8 +95,32 @@ struct MeshControls {
   double surface = 0;     ///< m (0 = choose)
 };
 
+/// `analyses.modal`: the lowest natural modes of both models.
+struct ModalAnalysis {
+  int modes = 10;        ///< modes wanted per model
+  double shift_hz = 0;   ///< `above-hz`: the modes found are the lowest above this frequency [Hz]
+  SourceLoc loc;
+};
+
+/// `analyses.harmonic`: steady-state response over a list of frequencies.
+struct HarmonicAnalysis {
+  std::vector<double> frequencies_hz;  ///< ascending, each > 0
+  enum class Excitation { wave, source } excitation = Excitation::wave;
+  bool p_wave = false;       ///< wave: P (vertical motion) instead of S
+  int polarization = 0;      ///< wave, 3d S: motion along x (0) or y (1)
+  double amplitude = 1e-6;   ///< wave: outcrop displacement amplitude of the bedrock [m]
+  double source_x = 0, source_y = 0, source_depth = 0;  ///< source position [m], depth positive down
+  double force = 0;          ///< source amplitude [N/m plane strain, N in 3d]
+  std::array<double, 3> direction{0, 0, -1};  ///< source direction (x, y, z), z up, unit length
+  double absorbing = 0;      ///< thickness of the absorbing band [m] (0 = choose)
+  double elements_per_wavelength = 0;  ///< at the highest frequency, slowest S wave, far-field size
+  SourceLoc loc;
+};
+
 struct Analyses {
   bool static_ = false;
+  std::optional<ModalAnalysis> modal;
+  std::optional<HarmonicAnalysis> harmonic;
   std::vector<std::string> not_implemented;  ///< analyses named in the file that this version skips
 };
 

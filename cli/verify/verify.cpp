@@ -387,6 +387,7 @@ const std::vector<VerifyCase>& verification_cases() {
       {"convergence-kirsch", convergence},
     };
     for (VerifyCase& c : verification_cases_3d()) all.push_back(std::move(c));
+    for (VerifyCase& c : verification_cases_dynamic()) all.push_back(std::move(c));
     return all;
   }();
   return cases;

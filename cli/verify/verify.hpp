@@ -35,6 +35,9 @@ const std::vector<VerifyCase>& verification_cases();
 /// The 3D cases (cli/verify/verify3d.cpp), appended to verification_cases().
 std::vector<VerifyCase> verification_cases_3d();
 
+/// The dynamic cases (cli/verify/verify_dynamic.cpp), appended after the 3D ones.
+std::vector<VerifyCase> verification_cases_dynamic();
+
 /// The layered column of the lithostatic cases on mesh `m` (2D or 3D): gravity switched on with
 /// k0 = ν/(1−ν), or (in_situ) a prescribed in-situ state with k0 = 0.8. `ref` receives the
 /// column for the closed form.

@@ -153,7 +153,7 @@ TEST_CASE("a mesh too large for the machine is refused before allocating") {
 }
 
 TEST_CASE("the demo scenarios run") {
-  for (const std::string name : {"chalk-gallery.yaml", "karst-cave.yaml", "gallery-under-road-3d.yaml"}) {
+  for (const std::string name : {"chalk-gallery.yaml", "karst-cave.yaml", "gallery-under-road-3d.yaml", "cellar-under-orchard-dynamic.yaml"}) {
     const fs::path d = temp_dir("demo");
     Cmd c = run(std::string("run ") + VOIDSIGN_SOURCE_DIR + "/scenarios/" + name + " --out " + (d / "o").string());
     INFO(c.out);
@@ -168,6 +168,90 @@ TEST_CASE("the demo scenarios run") {
       CHECK(j["static"]["residual"].get<double>() < 1e-8);
       CHECK(j["static"]["anomaly"]["uz_min"].get<double>() < 0);
     }
+    if (name.find("dynamic") != std::string::npos) {
+      CHECK(read(d / "o/modal/modes.csv").find("\nmode,f_hz,f_ref_hz,") != std::string::npos);
+      CHECK(read(d / "o/harmonic/surface.csv").find("\nf_hz,x,ux_re,ux_im,uz_re,uz_im,ux_ref_re") != std::string::npos);
+      CHECK(fs::exists(d / "o/harmonic/fields.pvd"));
+      CHECK(fs::exists(d / "o/modal/modes.pvd"));
+    }
     fs::remove_all(d);
   }
+}
+
+TEST_CASE("modal and harmonic runs write their files with units, alone or after the static analysis") {
+  const std::string base = R"(format: 1
+title: dynamic test
+model: plane-strain
+domain: {width: 120, depth: 40}
+layers:
+  - {material: stiff-clay, thickness: 4}
+  - {material: chalk}
+voids:
+  - {shape: circle, x: 0, depth: 8, radius: 2}
+mesh: {order: 2, size: 4, near-void: 0.4, surface: 1.5}
+)";
+  const fs::path d = temp_dir("dyn");
+  const fs::path scn = write_file(d, "s.yaml", base + R"(analyses:
+  modal: {modes: 4}
+  harmonic:
+    frequencies: {min: 2, max: 6, count: 3, spacing: linear}
+    excitation: {wave: S, incidence: 0, amplitude: 1.0e-6}
+)");
+  const fs::path out = d / "out";
+  Cmd c = run("run " + scn.string() + " --out " + out.string());
+  INFO(c.out);
+  REQUIRE(c.rc == 0);
+  for (const char* f : {"summary.json", "modal/modes.csv", "modal/modes.pvd", "modal/mode_001.vtu", "modal/mode_004.vtu",
+                        "harmonic/surface.csv", "harmonic/fields.pvd", "harmonic/fields_000.vtu", "harmonic/fields_002.vtu"})
+    CHECK_MESSAGE(fs::exists(out / f), f);
+  CHECK_FALSE(fs::exists(out / "static"));
+  const std::string modes = read(out / "modal/modes.csv");
+  CHECK(modes.rfind("# ", 0) == 0);
+  CHECK(modes.find("units: SI") != std::string::npos);
+  CHECK(modes.find("\nmode,f_hz,f_ref_hz,") != std::string::npos);
+  const std::string surf = read(out / "harmonic/surface.csv");
+  CHECK(surf.find("units: SI") != std::string::npos);
+  CHECK(surf.find("\nf_hz,x,ux_re,ux_im,uz_re,uz_im,ux_ref_re,ux_ref_im,uz_ref_re,uz_ref_im") != std::string::npos);
+  CHECK(read(out / "harmonic/fields.pvd").find("fields_001.vtu") != std::string::npos);
+  const auto j = nlohmann::json::parse(read(out / "summary.json"));
+  CHECK_FALSE(j.contains("static"));
+  CHECK(j["modal"]["modes"].size() == 4);
+  CHECK(j["modal"]["residual"].get<double>() < 1e-6);
+  for (const auto& m : j["modal"]["modes"]) CHECK(m["f_hz"].get<double>() > 0);
+  CHECK(j["harmonic"]["frequencies_hz"].size() == 3);
+  CHECK(j["harmonic"]["residual"].get<double>() < 1e-8);
+  CHECK(j["harmonic"]["peak_anomaly"]["anomaly_absmax"].get<double>() > 0);
+  // The anomaly is a fraction of the motion (outcrop 1e-6 m, amplified a few times at most).
+  CHECK(j["harmonic"]["peak_anomaly"]["anomaly_absmax"].get<double>() < 1e-5);
+  for (const auto& e : fs::recursive_directory_iterator(out)) CHECK(e.path().string().find(".tmp-") == std::string::npos);
+
+  // Static + point source.
+  const fs::path scn2 = write_file(d, "s2.yaml", base + R"(loads: {gravity: {k0: auto}}
+analyses:
+  static: {}
+  harmonic:
+    frequencies: [3]
+    excitation: {source: {x: 10, depth: 0, force: 1.0e3}}
+)");
+  c = run("run " + scn2.string() + " --out " + (d / "out2").string());
+  INFO(c.out);
+  REQUIRE(c.rc == 0);
+  CHECK(fs::exists(d / "out2/static/surface.csv"));
+  CHECK(fs::exists(d / "out2/harmonic/surface.csv"));
+  const auto j2 = nlohmann::json::parse(read(d / "out2/summary.json"));
+  CHECK(j2.contains("static"));
+  CHECK(j2["harmonic"]["excitation"]["type"] == "point force");
+
+  // Bad input: exit code 2 and nothing written.
+  const fs::path bad = write_file(d, "bad.yaml", base + R"(analyses:
+  harmonic:
+    frequencies: {min: 3, max: 1}
+    excitation: {wave: S}
+)");
+  c = run("run " + bad.string() + " --out " + (d / "out3").string());
+  CHECK(c.rc == 2);
+  CHECK(c.out.find("bad.yaml:") != std::string::npos);
+  CHECK(c.out.find("analyses.harmonic.frequencies.max") != std::string::npos);
+  CHECK(!fs::exists(d / "out3"));
+  fs::remove_all(d);
 }

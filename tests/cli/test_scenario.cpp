@@ -726,8 +726,9 @@ TEST_CASE("analyses, sensors and mesh warnings") {
           "mesh: {size: 1, near-void: 2}\n",
       k_file);
   CHECK(sc.analyses.static_);
-  CHECK(sc.analyses.not_implemented == std::vector<std::string>{"modal", "ambient"});
-  CHECK(any_warning(sc, "the modal analysis is not implemented in this version"));
+  CHECK(sc.analyses.not_implemented == std::vector<std::string>{"ambient"});
+  REQUIRE(sc.analyses.modal);
+  CHECK(sc.analyses.modal->modes == 10);
   CHECK(any_warning(sc, "the ambient analysis is not implemented"));
   CHECK(sc.has_sensors);
   CHECK(any_warning(sc, "detectability is computed by a later version"));
@@ -735,7 +736,10 @@ TEST_CASE("analyses, sensors and mesh warnings") {
   CHECK(any_warning(sc, "coarse for this void"));
   const Scenario modal_only = parse_scenario(k_head + v + "analyses: {modal: {}}\n", k_file);
   CHECK_FALSE(modal_only.analyses.static_);
-  CHECK(any_warning(modal_only, "no analysis that this version runs"));
+  CHECK(modal_only.analyses.modal);
+  CHECK_FALSE(any_warning(modal_only, "no analysis that this version runs"));
+  const Scenario ambient_only = parse_scenario(k_head + v + "analyses: {ambient: {}}\n", k_file);
+  CHECK(any_warning(ambient_only, "no analysis that this version runs"));
   expect_error(k_head + v + "analyses: {modal: 10}\n", "10", "analyses.modal",
                "expected a mapping");
   expect_error(k_head + v + "analyses: {statics: {}}\n", "statics", "analyses.statics",
@@ -800,7 +804,7 @@ analyses:
   static: {}
   modal: {modes: 10}
   harmonic:
-    frequencies: {min: 0.1, max: 20, count: 60, spacing: log}
+    frequencies: {min: 0.1, max: 0.5, count: 60, spacing: log}   # 20 Hz is not resolved by size 5 in loess
     excitation: {wave: S, incidence: 0, amplitude: 1.0e-6}
   transient:
     duration: 1.0
@@ -822,14 +826,15 @@ output:
 )";
   const Scenario sc = parse_scenario(yaml, "/tmp/voidsign-test/gallery.yaml");
   CHECK(sc.analyses.static_);
-  CHECK(sc.analyses.not_implemented ==
-        std::vector<std::string>{"modal", "harmonic", "transient", "ambient"});
+  CHECK(sc.analyses.not_implemented == std::vector<std::string>{"transient", "ambient"});
+  REQUIRE(sc.analyses.harmonic);
+  CHECK(sc.analyses.harmonic->frequencies_hz.size() == 60);
   CHECK(sc.has_sensors);
   CHECK(sc.domain.length == 300);
   CHECK(any_warning(sc, "key 'domain.length'"));
   CHECK(sc.mesh.near_void == 0.25);
   CHECK(sc.output_dir == std::filesystem::path("/tmp/voidsign-test/results/gallery"));
-  CHECK(sc.warnings.size() == 6);  // length, four analyses, sensors
+  CHECK(sc.warnings.size() == 4);  // length, transient and ambient skipped, sensors
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -1357,4 +1362,74 @@ TEST_CASE("3d: the 3d example in docs/scenario-format.md parses") {
   CHECK(sc.model == Model::three_d);
   CHECK(sc.voids.size() == 3);
   CHECK(sc.loads.surface.size() == 1);
+}
+
+TEST_CASE("modal and harmonic keys: values, defaults and errors with their position") {
+  const std::string v = "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\n";
+  const std::string mesh = "mesh: {size: 1}\n";
+  const Scenario sc = parse_scenario(k_head + v + mesh +
+                                         "analyses:\n  modal: {modes: 6, above-hz: 0.5}\n  harmonic:\n"
+                                         "    frequencies: {min: 1, max: 8, count: 4, spacing: log}\n"
+                                         "    excitation: {wave: S, incidence: 0, amplitude: 2.0e-6}\n",
+                                     k_file);
+  REQUIRE(sc.analyses.modal);
+  CHECK(sc.analyses.modal->modes == 6);
+  CHECK(sc.analyses.modal->shift_hz == 0.5);
+  REQUIRE(sc.analyses.harmonic);
+  const auto& f = sc.analyses.harmonic->frequencies_hz;
+  REQUIRE(f.size() == 4);
+  CHECK(f[0] == doctest::Approx(1));
+  CHECK(f[1] == doctest::Approx(2));
+  CHECK(f[3] == 8);
+  CHECK(sc.analyses.harmonic->amplitude == 2e-6);
+  CHECK(sc.analyses.harmonic->elements_per_wavelength > 5);
+  const Scenario lin = parse_scenario(k_head + v + mesh + "analyses:\n  harmonic:\n    frequencies: [4, 2, 3]\n"
+                                      "    excitation: {source: {x: 5, depth: 0, force: 1.0e3}}\n", k_file);
+  CHECK(lin.analyses.harmonic->frequencies_hz == std::vector<double>{2, 3, 4});
+  CHECK(lin.analyses.harmonic->excitation == HarmonicAnalysis::Excitation::source);
+  CHECK(lin.analyses.harmonic->direction[2] == -1);
+
+  const std::string h = k_head + v + mesh + "analyses:\n  harmonic:\n";
+  const std::string wave = "    excitation: {wave: S}\n";
+  expect_error(h + "    frequencies: {min: 0, max: 8}\n" + wave, "0", "analyses.harmonic.frequencies.min",
+               "must be greater than 0");
+  expect_error(h + "    frequencies: {min: 5, max: 2}\n" + wave, "2}", "analyses.harmonic.frequencies.max",
+               "must be greater than min");
+  expect_error(h + "    frequencies: {min: 1, max: 2, count: 0}\n" + wave, "0}", "analyses.harmonic.frequencies.count",
+               "at least 1");
+  expect_error(h + "    frequencies: [1, -2]\n" + wave, "-2", "analyses.harmonic.frequencies.1", "greater than 0");
+  expect_error(h + "    frequencies: [1, 2]\n    excitation: {wave: S, incidence: 30}\n", "30",
+               "analyses.harmonic.excitation.incidence", "only vertical incidence");
+  expect_error(h + "    frequencies: [1, 2]\n    excitation: {wave: R}\n", "R}", "analyses.harmonic.excitation.wave",
+               "unknown wave type");
+  expect_error(h + "    frequencies: [1, 2]\n", "frequencies", "analyses.harmonic.excitation", "required key is missing");
+  expect_error(k_head + v + "analyses:\n  modal: {modes: 0}\n", "0}", "analyses.modal.modes", "between 1 and 500");
+  expect_error(k_head + v + "analyses:\n  modal: {mode: 3}\n", "mode:", "analyses.modal.mode", "did you mean 'modes'?");
+}
+
+TEST_CASE("harmonic: a band the mesh cannot resolve warns, then fails, and axisymmetric models are refused") {
+  // chalk (top layer) is the slowest; quadratic elements need 5 per S wavelength.
+  const std::string v = "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\n";
+  const std::string a = "analyses:\n  harmonic:\n    frequencies: {min: 1, max: MAX}\n    excitation: {wave: S}\n";
+  auto with_max = [&](const std::string& mx) {
+    std::string t = a;
+    t.replace(t.find("MAX"), 3, mx);
+    return k_head + v + "mesh: {size: 5}\n" + t;
+  };
+  const Scenario ok = parse_scenario(with_max("10"), k_file);
+  const double per = ok.analyses.harmonic->elements_per_wavelength;
+  REQUIRE(per > 0);
+  // Frequencies giving 4 and 2 elements per wavelength.
+  const double f4 = 10 * per / 4, f2 = 10 * per / 2;
+  const Scenario warned = parse_scenario(with_max(std::to_string(f4)), k_file);
+  CHECK(any_warning(warned, "per wavelength, fewer than the 5 needed for quadratic elements"));
+  CHECK(any_warning(warned, "set mesh.size to"));
+  const std::string bad = with_max(std::to_string(f2));
+  expect_error(bad, "{min", "analyses.harmonic.frequencies", "below half of that");
+  const std::string axi = "format: 1\nmodel: axisymmetric\ndomain: {width: 100, depth: 50}\nlayers:\n  - {material: chalk}\n"
+                          "analyses:\n  harmonic: {frequencies: [1], excitation: {wave: S}}\n";
+  expect_error(axi, "{frequencies", "analyses.harmonic", "not available for axisymmetric models");
+  const std::string axi_modal = "format: 1\nmodel: axisymmetric\ndomain: {width: 100, depth: 50}\nlayers:\n  - {material: chalk}\n"
+                                "analyses:\n  modal: {modes: 3}\n";
+  CHECK(parse_scenario(axi_modal, k_file).analyses.modal);
 }

@@ -43,6 +43,11 @@ TEST_CASE("verify: Mogi (1958) / McTigue (1987) sphere in 3D within 3 %, and aga
 TEST_CASE("verify: lithostatic column in 3D within 0.1 %") { check_case("lithostatic-3d"); }
 TEST_CASE("verify: Boussinesq (1885) square load on a half-space in 3D within 3 %") { check_case("boussinesq-3d"); }
 TEST_CASE("verify: a tunnel 20 depths long in 3D against plane strain within 2 %") { check_case("tunnel-plane-strain"); }
+TEST_CASE("verify: clamped-clamped strip, first two bending modes within 2 % of Blevins (1979)") { check_case("blevins-strip"); }
+TEST_CASE("verify: damped layer on rock, Vs/(4H) within 1 % and resonant amplification within 3 % of Kramer (1996)") {
+  check_case("site-response-kramer");
+}
+TEST_CASE("verify: three-layer column within 3 % of Haskell-Thomson from 0.1 to 20 Hz") { check_case("haskell-thomson-column"); }
 TEST_CASE("verify: convergence order on Kirsch, linear >= 1.8 and quadratic >= 2.5") { check_case("convergence-kirsch"); }
 
 TEST_CASE("Verruijt & Booker error against block size, printed (the 100 h row is asserted above)") {
