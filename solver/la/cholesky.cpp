@@ -278,20 +278,8 @@ Status Cholesky::factorize(const SparseMatrix& k) {
 }
 
 Vector Cholesky::solve(const Vector& b) const {
-  Impl& s = *impl_;
-  if (!s.L) throw std::logic_error("Cholesky::solve before factorize");
-  cholmod_dense rhs{};
-  rhs.nrow = static_cast<std::size_t>(b.size());
-  rhs.ncol = 1;
-  rhs.nzmax = rhs.d = rhs.nrow;
-  rhs.x = const_cast<double*>(b.data());
-  rhs.xtype = CHOLMOD_REAL;
-  rhs.dtype = CHOLMOD_DOUBLE;
-  cholmod_dense* x = cholmod_solve(CHOLMOD_A, s.L, &rhs, &s.c);
-  if (!x) throw std::runtime_error("CHOLMOD solve failed (status " + std::to_string(s.c.status) + ")");
-  Vector out = Eigen::Map<const Vector>(static_cast<const double*>(x->x), b.size());
-  cholmod_free_dense(&x, &s.c);
-  return out;
+  if (!impl_->L) throw std::logic_error("Cholesky::solve before factorize");
+  return cholmod_steps(impl_->L, &impl_->c, b, {CHOLMOD_A});
 }
 
 double Cholesky::factor_nonzeros() const { return impl_->c.lnz; }
