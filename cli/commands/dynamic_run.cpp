@@ -13,6 +13,7 @@
 #include "cli/errors.hpp"
 #include "cli/output/csv.hpp"
 #include "cli/output/output_dir.hpp"
+#include "cli/output/vtk_series.hpp"
 #include "mesh/io/vtk_writer.hpp"
 #include "solver/analysis/static.hpp"
 #include "solver/fe/pml.hpp"
@@ -34,11 +35,6 @@ std::string fmt(double v, int prec = 3) {
   return os.str();
 }
 
-solver::Kinematics kinematics_of(const Scenario& s) {
-  return s.model == Model::axisymmetric ? solver::Kinematics::axisymmetric
-         : s.model == Model::three_d    ? solver::Kinematics::solid
-                                        : solver::Kinematics::plane_strain;
-}
 
 std::array<double, 3> centroid(const mesh::Mesh& m, std::size_t c) {
   std::array<double, 3> g{0, 0, 0};
@@ -126,47 +122,10 @@ std::vector<double> surface_ratio(const mesh::Mesh& m, int d, const Eigen::Matri
   return out;
 }
 
-// Point field (3 components) of one column of `u` (d unknowns per node), times `scale`.
-mesh::Field vector_field(const std::string& name, const mesh::Mesh& m, int d, const Eigen::VectorXd& u, double scale) {
-  mesh::Field f{name, 3, {}};
-  f.values.reserve(3 * m.n_nodes());
-  for (std::size_t n = 0; n < m.n_nodes(); ++n) {
-    const Eigen::Index b = d * static_cast<Eigen::Index>(n);
-    if (d == 3)
-      f.values.insert(f.values.end(), {scale * u[b], scale * u[b + 1], scale * u[b + 2]});
-    else
-      f.values.insert(f.values.end(), {scale * u[b], 0.0, scale * u[b + 1]});
-  }
-  return f;
-}
-
 double max_node_amplitude(int d, const Eigen::VectorXd& u) {
   double best = 0;
   for (Eigen::Index b = 0; b + d <= u.size(); b += d) best = std::max(best, u.segment(b, d).norm());
   return best;
-}
-
-// A ParaView collection of `files` (one per value of `values`), with a units note.
-void write_pvd(const fs::path& path, const std::vector<std::string>& files, const std::vector<double>& values,
-               const std::string& note) {
-  std::string t = "<?xml version=\"1.0\"?>\n<!-- " + note + " -->\n";
-  t += "<VTKFile type=\"Collection\" version=\"0.1\" byte_order=\"LittleEndian\">\n  <Collection>\n";
-  for (std::size_t k = 0; k < files.size(); ++k)
-    t += "    <DataSet timestep=\"" + format_number(values[k]) + "\" group=\"\" part=\"0\" file=\"" + files[k] + "\"/>\n";
-  t += "  </Collection>\n</VTKFile>\n";
-  write_text_atomic(path, t);
-}
-
-std::string numbered(const char* stem, std::size_t k) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%s_%03zu.vtu", stem, k);
-  return buf;
-}
-
-mesh::Field cell_tag(const char* name, const mesh::Mesh& m, const std::function<double(std::size_t)>& v) {
-  mesh::Field f{name, 1, {}};
-  for (std::size_t c = 0; c < m.n_cells(); ++c) f.values.push_back(v(c));
-  return f;
 }
 
 }  // namespace

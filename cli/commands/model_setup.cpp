@@ -194,6 +194,12 @@ std::vector<double> layer_k0(const Scenario& s) {
   return k;
 }
 
+solver::Kinematics kinematics_of(const Scenario& s) {
+  return s.model == Model::axisymmetric ? solver::Kinematics::axisymmetric
+         : s.model == Model::three_d    ? solver::Kinematics::solid
+                                        : solver::Kinematics::plane_strain;
+}
+
 solver::StaticProblem static_problem_of(const Scenario& s, const mesh::Mesh& m) {
   solver::StaticProblem p;
   p.mesh = &m;

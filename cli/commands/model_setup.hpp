@@ -19,6 +19,9 @@ mesh::Geometry3D geometry3d_of(const Scenario& s);
 /// Mean y of the voids (3D far-field ring centre), m.
 double y_centre_of(const Scenario& s);
 
+/// The element kinematics of the scenario's model.
+solver::Kinematics kinematics_of(const Scenario& s);
+
 /// The static problem on mesh `m` (which must have been built from geometry_of(s)).
 solver::StaticProblem static_problem_of(const Scenario& s, const mesh::Mesh& m);
 

@@ -12,6 +12,7 @@
 #include "cli/commands/dynamic_run.hpp"
 #include "cli/commands/model_setup.hpp"
 #include "cli/commands/static_run.hpp"
+#include "cli/commands/transient_run.hpp"
 #include "cli/errors.hpp"
 #include "cli/output/output_dir.hpp"
 #include "cli/scenario/scenario.hpp"
@@ -109,6 +110,17 @@ void print_harmonic(const HarmonicRun& h, const mesh::Mesh& mesh, const fs::path
   std::printf("Results in %s/harmonic/ (surface.csv, fields.pvd)\n", dir.string().c_str());
 }
 
+void print_transient(const TransientRun& t, const mesh::Mesh& mesh, const fs::path& dir) {
+  const TransientPeak pk = transient_peak(t, mesh);
+  std::printf("\nTransient signature (with voids minus without), ground surface, %d steps of %.3g s:\n", t.result.n_steps,
+              t.result.time_step_s);
+  std::printf("  %-34s %12.4g m    at t = %.4g s, x = %.2f m%s\n", "largest |anomaly|", pk.anomaly, pk.t, pk.x,
+              mesh.dim() == 3 ? (", y = " + std::to_string(pk.y)).c_str() : "");
+  std::printf("  %-34s %12.4g m\n", "largest surface motion (no voids)", pk.reference);
+  std::printf("Results in %s/transient/ (seismograms.csv%s)\n", dir.string().c_str(),
+              t.snapshot_times.empty() ? "" : ", snapshots.pvd");
+}
+
 }  // namespace
 
 fs::path output_dir_for(const RunOptions& opt, const fs::path& scenario_dir, const fs::path& from_file) {
@@ -123,9 +135,9 @@ int run_command(const RunOptions& opt) {
   const fs::path dir = output_dir_for(opt, s.file.parent_path(), s.output_dir);
   if (fs::exists(dir) && !(fs::is_directory(dir) && fs::is_empty(dir)) && !opt.force)
     throw InputError(dir.string() + ": output folder exists and is not empty; use --force to replace it");
-  if (!s.analyses.static_ && !s.analyses.modal && !s.analyses.harmonic)
-    throw InputError(s.file.string() +
-                     ": key 'analyses': no analysis this version runs was requested (add 'static: {}', 'modal: {}' or 'harmonic: ...')");
+  if (!s.analyses.static_ && !s.analyses.modal && !s.analyses.harmonic && !s.analyses.transient)
+    throw InputError(s.file.string() + ": key 'analyses': no analysis this version runs was requested (add 'static: {}', "
+                                       "'modal: {}', 'harmonic: ...' or 'transient: ...')");
   for (const auto& w : s.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
   check_budget(s, estimate_run(s));
 
@@ -147,6 +159,11 @@ int run_command(const RunOptions& opt) {
     harmonic = run_harmonic(s, *run.mesh, &progress);
     run.warnings.insert(run.warnings.end(), harmonic->warnings.begin(), harmonic->warnings.end());
   }
+  std::optional<TransientRun> transient;
+  if (s.analyses.transient) {
+    transient = run_transient(s, *run.mesh, &progress);
+    run.warnings.insert(run.warnings.end(), transient->warnings.begin(), transient->warnings.end());
+  }
   for (const auto& w : run.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
 
   // Everything goes to a staging folder that replaces DIR only when complete.
@@ -159,6 +176,7 @@ int run_command(const RunOptions& opt) {
     if (s.analyses.static_) write_static_outputs(run, s, staging);
     if (modal) write_modal_outputs(*modal, s, *run.mesh, staging);
     if (harmonic) write_harmonic_outputs(*harmonic, s, *run.mesh, staging);
+    if (transient) write_transient_outputs(*transient, s, *run.mesh, staging);
     nlohmann::json j;
     j["format"] = 1;
     j["tool_version"] = VOIDSIGN_VERSION;
@@ -180,6 +198,7 @@ int run_command(const RunOptions& opt) {
     if (s.analyses.static_) j["static"] = static_summary(run);
     if (modal) j["modal"] = modal_summary(*modal);
     if (harmonic) j["harmonic"] = harmonic_summary(*harmonic, s, *run.mesh);
+    if (transient) j["transient"] = transient_summary(*transient, s, *run.mesh);
     j["detectability"] = nlohmann::json::array();
     std::vector<std::string> warnings = s.warnings;
     warnings.insert(warnings.end(), run.warnings.begin(), run.warnings.end());
@@ -194,6 +213,7 @@ int run_command(const RunOptions& opt) {
                       {"solve", t.analyse + t.factorize + t.solve},
                       {"modal", modal ? modal->seconds : 0.0},
                       {"harmonic", harmonic ? harmonic->result.total_seconds : 0.0},
+                      {"transient", transient ? transient->seconds : 0.0},
                       {"write", write_s},
                       {"total", std::chrono::duration<double>(std::chrono::steady_clock::now() - t_start).count()}};
     write_text_atomic(staging / "summary.json", j.dump(2) + "\n");
@@ -213,6 +233,7 @@ int run_command(const RunOptions& opt) {
   if (s.analyses.static_) print_peaks(run, dir);
   if (modal) print_modal(*modal, dir);
   if (harmonic) print_harmonic(*harmonic, *run.mesh, dir);
+  if (transient) print_transient(*transient, *run.mesh, dir);
   if (!s.analyses.static_) std::printf("Caution: %s\n", caution_text);
   return exit_ok;
 }
@@ -239,6 +260,13 @@ int check_command(const fs::path& file) {
   std::printf("element quality: min %.3f, mean %.3f (1 = equilateral); no inverted elements\n", q.min_quality,
               q.mean_quality);
   std::printf("run estimate (both models): %.2f GB peak memory, %.1f s\n", after.memory_bytes / 1e9, after.seconds);
+  if (s.analyses.transient) {
+    const TransientPlan plan = plan_transient(s, *m);
+    std::printf("transient estimate: %d steps of %.3g s (stable step %.3g s), %zu receivers, %zu snapshots per model; "
+                "%.2f GB, %.1f s for both models\n",
+                plan.n_steps, plan.time_step_s, plan.stable_step_s, plan.receivers.size(), plan.n_snapshots,
+                plan.estimate.bytes / 1e9, plan.estimate.seconds_total);
+  }
   return exit_ok;
 }
 

@@ -1313,6 +1313,22 @@ std::vector<double> parse_frequencies(const Field& f) {
   return out;
 }
 
+// A force direction [dx, dz] (2D) or [dx, dy, dz] (3D), z up, normalised.
+std::array<double, 3> parse_direction(const Field& df, bool three_d) {
+  const auto items = df.list();
+  const std::size_t n = three_d ? 3 : 2;
+  if (items.size() != n)
+    df.fail(std::string("expected ") + (three_d ? "[dx, dy, dz]" : "[dx, dz]") + " (z up), found " +
+            std::to_string(items.size()) + " value(s)");
+  std::array<double, 3> d{0, 0, 0};
+  d[0] = items[0].number();
+  if (three_d) d[1] = items[1].number();
+  d[2] = items[n - 1].number();
+  const double len = std::sqrt(d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
+  if (!(len > 0)) df.fail("the direction must not be zero");
+  return {d[0] / len, d[1] / len, d[2] / len};
+}
+
 HarmonicAnalysis parse_harmonic(const Map& m, bool three_d) {
   m.allow({"frequencies", "excitation", "absorbing"});
   HarmonicAnalysis a;
@@ -1330,20 +1346,7 @@ HarmonicAnalysis parse_harmonic(const Map& m, bool three_d) {
     if (three_d) a.source_y = sm.need("y").number();
     a.source_depth = sm.need("depth", "0 for a force on the ground surface").non_negative();
     a.force = sm.need("force", three_d ? "amplitude in N" : "amplitude in N per metre of length").positive();
-    if (auto df = sm.get("direction")) {
-      const auto items = df->list();
-      const std::size_t n = three_d ? 3 : 2;
-      if (items.size() != n)
-        df->fail(std::string("expected ") + (three_d ? "[dx, dy, dz]" : "[dx, dz]") + " (z up), found " +
-                 std::to_string(items.size()) + " value(s)");
-      std::array<double, 3> d{0, 0, 0};
-      d[0] = items[0].number();
-      if (three_d) d[1] = items[1].number();
-      d[2] = items[n - 1].number();
-      const double len = std::sqrt(d[0] * d[0] + d[1] * d[1] + d[2] * d[2]);
-      if (!(len > 0)) df->fail("the direction must not be zero");
-      a.direction = {d[0] / len, d[1] / len, d[2] / len};
-    }
+    if (auto df = sm.get("direction")) a.direction = parse_direction(*df, three_d);
     return a;
   }
   em.allow(three_d ? Strings{"wave", "incidence", "amplitude", "polarization", "source"}
@@ -1362,11 +1365,51 @@ HarmonicAnalysis parse_harmonic(const Map& m, bool three_d) {
   return a;
 }
 
-// Elements per S wavelength at the highest frequency in the slowest layer, with the far-field
-// size as the element size (the mesher's largest): quadratic elements need 5, linear 10
-// (docs/scenario-format.md). Below the minimum: a warning; below half of it: an error.
-void check_resolution(const Field& f, Scenario& sc) {
-  HarmonicAnalysis& a = *sc.analyses.harmonic;
+TransientAnalysis parse_transient(const Map& m, bool three_d) {
+  m.allow({"duration", "time-step", "source", "snapshots", "record-interval", "receiver-spacing"});
+  TransientAnalysis a;
+  a.loc = m.self().loc();
+  a.duration_s = m.need("duration", "simulated time in s").positive();
+  if (auto f = m.get("time-step")) {
+    a.time_step_s = f->positive();
+    a.time_step_loc = f->loc();
+  }
+  const Map sm = m.need("source", three_d ? "{x, y, depth, peak-frequency, force}" : "{x, depth, peak-frequency, force}").map();
+  sm.allow(three_d ? Strings{"x", "y", "depth", "peak-frequency", "force", "direction", "delay"}
+                   : Strings{"x", "depth", "peak-frequency", "force", "direction", "delay"});
+  a.source_x = sm.need("x").number();
+  if (three_d) a.source_y = sm.need("y").number();
+  a.source_depth = sm.need("depth", "0 for a force on the ground surface").non_negative();
+  const Field pf = sm.need("peak-frequency", "the Ricker wavelet's peak frequency in Hz");
+  a.peak_hz = pf.positive();
+  a.force = sm.need("force", three_d ? "peak amplitude in N" : "peak amplitude in N per metre of length").positive();
+  if (auto df = sm.get("direction")) a.direction = parse_direction(*df, three_d);
+  if (auto f = sm.get("delay")) {
+    a.delay_s = f->positive();
+    if (a.delay_s < 1.0 / a.peak_hz)
+      f->warn("a delay below 1/peak-frequency (" + num(1.0 / a.peak_hz) + " s) cuts the start of the wavelet off: the "
+              "source then starts with a jump");
+  }
+  if (a.delay_s == 0) a.delay_s = 1.5 / a.peak_hz;
+  if (a.delay_s >= a.duration_s)
+    m.need("duration").fail("the duration " + num(a.duration_s) + " s ends before the wavelet's peak at " + num(a.delay_s) +
+                            " s: lengthen it");
+  if (auto f = m.get("snapshots")) {
+    a.snapshot_interval_s = f->positive();
+    const double n = a.duration_s / a.snapshot_interval_s;
+    if (n > 1000) f->fail("an interval of " + num(a.snapshot_interval_s) + " s gives " + num(std::floor(n)) +
+                          " snapshots per model, more than 1000: choose an interval of at least " + num(a.duration_s / 1000) + " s");
+  }
+  if (auto f = m.get("record-interval")) a.record_interval_s = f->positive();
+  if (auto f = m.get("receiver-spacing")) a.receiver_spacing = f->positive();
+  return a;
+}
+
+// Elements per S wavelength at the highest frequency f_max in the slowest layer, with the
+// far-field size as the element size (the mesher's largest): quadratic elements need 5, linear 10
+// (docs/scenario-format.md). Below the minimum: a warning on `key`; below half of it: an error.
+// `what` says where f_max comes from.
+double check_resolution(const Field& key, const Scenario& sc, double f_max, const std::string& what) {
   double vs_min = std::numeric_limits<double>::infinity();
   std::string slowest;
   for (const Layer& l : sc.layers) {
@@ -1377,22 +1420,20 @@ void check_resolution(const Field& f, Scenario& sc) {
       slowest = l.material;
     }
   }
-  const double f_max = a.frequencies_hz.back();
   const double lambda = vs_min / f_max, h = sc.mesh.size;
   const double need = sc.mesh.order == 2 ? 5 : 10;
-  a.elements_per_wavelength = lambda / h;
-  if (a.elements_per_wavelength >= need) return;
-  char buf[400];
+  const double per = lambda / h;
+  if (per >= need) return per;
+  char buf[480];
   std::snprintf(buf, sizeof buf,
-                "at %g Hz the S wavelength in '%s' (Vs %.0f m/s) is %.3g m: %.2g element(s) of size %g m per "
+                "at %g Hz (%s) the S wavelength in '%s' (Vs %.0f m/s) is %.3g m: %.2g element(s) of size %g m per "
                 "wavelength, fewer than the %g needed for %s elements (set mesh.size to %.3g m or less, or lower "
-                "the highest frequency to %.3g Hz)",
-                f_max, slowest.c_str(), vs_min, lambda, a.elements_per_wavelength, h, need,
+                "the frequency to %.3g Hz)",
+                f_max, what.c_str(), slowest.c_str(), vs_min, lambda, per, h, need,
                 sc.mesh.order == 2 ? "quadratic" : "linear", lambda / need, vs_min / (need * h));
-  const Map m = f.map();
-  const Field ff = *m.get("frequencies");
-  if (a.elements_per_wavelength < need / 2) ff.fail(std::string(buf) + "; below half of that the results are meaningless");
-  ff.warn(buf);
+  if (per < need / 2) key.fail(std::string(buf) + "; below half of that the results are meaningless");
+  key.warn(buf);
+  return per;
 }
 
 }  // namespace
@@ -1683,13 +1724,9 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
   }
   for (const auto& v : sc.voids)
     if (v.contents != Contents::empty) any_load = true;
-  if (!any_load)
-    warn_at(ctx, top.self().mark(), "loads",
-            "nothing loads the model (no gravity, surface load, ground loss or void contents): "
-            "every displacement is zero");
 
   // analyses
-  std::optional<Field> harmonic_field;
+  std::optional<Field> harmonic_field, transient_field;
   if (auto af = top.get("analyses")) {
     const Map am = af->map(true);
     am.allow({"static", "modal", "harmonic", "transient", "ambient"});
@@ -1707,17 +1744,25 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
                  "axisymmetric (use model: plane-strain or 3d; modal works in all three)");
         sc.analyses.harmonic = parse_harmonic(options, three_d);
         harmonic_field = f;
+      } else if (name == "transient") {
+        sc.analyses.transient = parse_transient(options, three_d);
+        transient_field = f;
       } else {
         sc.analyses.not_implemented.push_back(name);
         warn_at(ctx, f.key_mark, f.path,
                 "the " + name + " analysis is not implemented in this version; skipped");
       }
     }
-    if (!sc.analyses.static_ && !sc.analyses.modal && !sc.analyses.harmonic)
-      af->warn("no analysis that this version runs (static, modal and harmonic are implemented)");
+    if (!sc.analyses.static_ && !sc.analyses.modal && !sc.analyses.harmonic && !sc.analyses.transient)
+      af->warn("no analysis that this version runs (static, modal, harmonic and transient are implemented)");
   } else {
     sc.analyses.static_ = true;
   }
+
+  if (!any_load && sc.analyses.static_)
+    warn_at(ctx, top.self().mark(), "loads",
+            "nothing loads the model (no gravity, surface load, ground loss or void contents): "
+            "every static displacement is zero");
 
   // mesh
   std::optional<Field> near_field;
@@ -1782,7 +1827,17 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
                 " m) than one near-void element size (" + num(h) + " m)");
   }
 
-  if (harmonic_field) check_resolution(*harmonic_field, sc);
+  if (harmonic_field) {
+    HarmonicAnalysis& a = *sc.analyses.harmonic;
+    a.elements_per_wavelength = check_resolution(*harmonic_field->map().get("frequencies"), sc, a.frequencies_hz.back(),
+                                                 "the highest frequency");
+  }
+  if (transient_field) {
+    // The Ricker amplitude spectrum (f/fp)^2 exp(1 - (f/fp)^2) is down to 3 % of its peak at 2.5 fp.
+    TransientAnalysis& a = *sc.analyses.transient;
+    a.elements_per_wavelength = check_resolution(*transient_field->map().get("source")->map().get("peak-frequency"), sc,
+                                                 2.5 * a.peak_hz, "2.5 x the wavelet's peak frequency");
+  }
 
   // sensors, output
   if (auto sf = top.get("sensors")) {

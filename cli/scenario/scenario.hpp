@@ -117,10 +117,27 @@ struct HarmonicAnalysis {
   SourceLoc loc;
 };
 
+/// `analyses.transient`: wave propagation in time from a Ricker-wavelet point (2D: line) force.
+struct TransientAnalysis {
+  double duration_s = 1;      ///< simulated time [s]
+  double time_step_s = 0;     ///< [s]; 0 = 0.9 x the stable step computed from the mesh
+  double source_x = 0, source_y = 0, source_depth = 0;  ///< m, depth positive down
+  double peak_hz = 10;        ///< the Ricker wavelet's peak frequency [Hz]
+  double force = 0;           ///< its peak amplitude [N/m plane strain, N/rad axisymmetric, N in 3d]
+  double delay_s = 0;         ///< time of the wavelet's central peak [s]; 0 = 1.5 / peak_hz
+  std::array<double, 3> direction{0, 0, -1};  ///< unit vector (x, y, z), z up
+  double snapshot_interval_s = 0;  ///< [s]; 0 = no snapshots
+  double record_interval_s = 0;    ///< seismogram sample interval [s]; 0 = about 1/(20 peak_hz)
+  double receiver_spacing = 0;     ///< m; 0 = every surface node
+  double elements_per_wavelength = 0;  ///< at 2.5 x peak_hz, slowest S wave, far-field size
+  SourceLoc loc, time_step_loc;  ///< of the block and of its time-step value
+};
+
 struct Analyses {
   bool static_ = false;
   std::optional<ModalAnalysis> modal;
   std::optional<HarmonicAnalysis> harmonic;
+  std::optional<TransientAnalysis> transient;
   std::vector<std::string> not_implemented;  ///< analyses named in the file that this version skips
 };
 

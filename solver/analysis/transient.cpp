@@ -192,7 +192,7 @@ double Ricker::operator()(double t) const {
   return amplitude * (1 - 2 * a * a) * std::exp(-a * a);
 }
 
-ExplicitModel::ExplicitModel(const TransientProblem& p, bool voided, double dt) : p_(&p), dt_(dt) {
+ExplicitModel::ExplicitModel(const TransientProblem& p, bool voided, double dt) : p_(&p), dt_(dt), voided_(voided) {
   check_problem(p);
   if (!(dt > 0)) throw std::invalid_argument("transient: time step must be > 0");
   const auto t0 = std::chrono::steady_clock::now();
@@ -427,7 +427,7 @@ TransientTraces ExplicitModel::run(int n_steps, int source_node, const Transient
     }
     std::swap(u, un);
     std::swap(v, vn);
-    if (cb.progress && ((step + 1) % progress_every == 0 || step + 1 == n_steps)) cb.progress("transient", static_cast<double>(step + 1) / n_steps);
+    if (cb.progress && ((step + 1) % progress_every == 0 || step + 1 == n_steps)) cb.progress(voided_ ? "with voids" : "without voids", static_cast<double>(step + 1) / n_steps);
   }
   out.loop_seconds = seconds_since(t0);
   return out;

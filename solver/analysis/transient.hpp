@@ -97,13 +97,15 @@ struct TransientProblem {
   bool record_energy = false;  ///< record the discrete energy at the receiver steps (undamped check)
 };
 
-/// Callbacks of the time loop (each optional).
+/// Callbacks of the time loop (each optional). solve_transient runs the model without voids
+/// first, then the model with voids.
 struct TransientCallbacks {
   /// Called at steps 0, m, 2m, … with the step, its time [s] and the displacement of every dof
   /// (d per node, zero at fixed or massless dofs; valid during the call only).
   std::function<void(int step, double time_s, std::span<const double> u)> snapshot;
   int snapshot_every = 0;  ///< m; 0 = no snapshots
-  /// Fraction done in [0, 1] of the current model, about every 1 % of the steps.
+  /// Fraction done in [0, 1] of the current model ("without voids" or "with voids"), about
+  /// every 1 % of the steps.
   Progress progress;
 };
 
@@ -172,6 +174,7 @@ class ExplicitModel {
  private:
   const TransientProblem* p_;
   double dt_;
+  bool voided_;
   int d_;
   std::vector<char> active_;
   std::vector<int> free_;       // reduced → dof

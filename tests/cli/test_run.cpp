@@ -4,6 +4,7 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <cmath>
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
@@ -253,5 +254,108 @@ analyses:
   CHECK(c.out.find("bad.yaml:") != std::string::npos);
   CHECK(c.out.find("analyses.harmonic.frequencies.max") != std::string::npos);
   CHECK(!fs::exists(d / "out3"));
+  fs::remove_all(d);
+}
+
+// Causality of the transient signature: the void's scattered wave cannot reach a receiver before
+// the source has started and a P wave (the fastest wave) has covered the shortest path from the
+// source to the void's wall and on to the receiver.
+TEST_CASE("a transient run writes seismograms and snapshots, and its signature is causal") {
+  const std::string base = R"(format: 1
+title: transient test
+model: plane-strain
+domain: {width: 120, depth: 40}
+layers:
+  - {material: chalk}
+voids:
+  - {shape: circle, x: 0, depth: 8, radius: 2}
+mesh: {order: 2, size: 4, near-void: 0.5, surface: 1.5}
+)";
+  const fs::path d = temp_dir("transient");
+  const fs::path scn = write_file(d, "t.yaml", base + R"(analyses:
+  transient:
+    duration: 0.22
+    source: {x: 30, depth: 0, peak-frequency: 10, force: 1.0e4}
+    snapshots: 0.1
+)");
+  Cmd c = run("check " + scn.string());
+  INFO(c.out);
+  CHECK(c.rc == 0);
+  CHECK(c.out.find("transient estimate:") != std::string::npos);
+  const fs::path out = d / "out";
+  c = run("run " + scn.string() + " --out " + out.string());
+  INFO(c.out);
+  REQUIRE(c.rc == 0);
+  for (const char* f : {"summary.json", "transient/seismograms.csv", "transient/snapshots.pvd", "transient/snapshot_000.vtu",
+                        "transient/snapshot_002.vtu"})
+    CHECK_MESSAGE(fs::exists(out / f), f);
+  const auto j = nlohmann::json::parse(read(out / "summary.json"));
+  const auto& t = j["transient"];
+  CHECK(t["steps"].get<int>() > 100);
+  CHECK(t["time_step_s"].get<double>() <= t["stable_step_s"].get<double>());
+  const double peak = t["peak_anomaly"]["anomaly_absmax"].get<double>();
+  CHECK(peak > 0);
+  CHECK(peak < t["peak_anomaly"]["reference_absmax"].get<double>());
+
+  const std::string csv = read(out / "transient/seismograms.csv");
+  CHECK(csv.find("units: SI") != std::string::npos);
+  const std::size_t head = csv.find("\nt,x,ux,uz,ux_ref,uz_ref,dux,duz\n");
+  REQUIRE(head != std::string::npos);
+  // Chalk from the catalogue: E 2 GPa, nu 0.25, rho 1900 kg/m3.
+  const double vp = std::sqrt(2e9 * 0.75 / (1.25 * 0.5) / 1900);
+  // The Ricker wavelet (peak 10 Hz, centred at 1.5/f = 0.15 s) first reaches 1e-3 of its peak.
+  double onset = 0;
+  for (double tt = 0; tt < 0.15; tt += 1e-5) {
+    const double a = M_PI * 10 * (tt - 0.15);
+    if (std::abs((1 - 2 * a * a) * std::exp(-a * a)) > 1e-3) {
+      onset = tt;
+      break;
+    }
+  }
+  std::istringstream rows(csv.substr(head + 1));
+  std::string line;
+  std::getline(rows, line);
+  std::size_t early = 0, checked = 0, late_large = 0;
+  while (std::getline(rows, line)) {
+    double v[8];
+    std::istringstream ls(line);
+    char comma;
+    for (int k = 0; k < 8; ++k) ls >> v[k] >> comma;
+    const double path = std::hypot(30.0, -8.0) - 2 + std::hypot(v[1], -8.0) - 2;
+    const double amp = std::hypot(v[6], v[7]);
+    if (v[0] < 0.9 * (onset + path / vp)) {
+      ++checked;
+      if (amp > 0.01 * peak) ++early;
+    } else if (amp > 0.1 * peak) {
+      ++late_large;
+    }
+  }
+  CHECK(checked > 1000);
+  CHECK(early == 0);
+  CHECK(late_large > 0);
+  const std::string pvd = read(out / "transient/snapshots.pvd");
+  CHECK(pvd.find("snapshot_001.vtu") != std::string::npos);
+
+  // Bad input: a time step above the stable one, a duration ending before the wavelet's peak.
+  const fs::path bad = write_file(d, "bad.yaml", base + R"(analyses:
+  transient:
+    duration: 0.22
+    time-step: 0.01
+    source: {x: 30, depth: 0, peak-frequency: 10, force: 1.0e4}
+)");
+  c = run("run " + bad.string() + " --out " + (d / "out2").string());
+  CHECK(c.rc == 2);
+  CHECK(c.out.find("analyses.transient.time-step") != std::string::npos);
+  CHECK(c.out.find("stable step") != std::string::npos);
+  CHECK(!fs::exists(d / "out2"));
+  const fs::path short_run = write_file(d, "short.yaml", base + R"(analyses:
+  transient:
+    duration: 0.1
+    source: {x: 30, depth: 0, peak-frequency: 10, force: 1.0e4}
+)");
+  c = run("run " + short_run.string() + " --out " + (d / "out3").string());
+  CHECK(c.rc == 2);
+  CHECK(c.out.find("short.yaml:") != std::string::npos);
+  CHECK(c.out.find("analyses.transient.duration") != std::string::npos);
   fs::remove_all(d);
 }

@@ -807,8 +807,8 @@ analyses:
     frequencies: {min: 0.1, max: 0.5, count: 60, spacing: log}   # 20 Hz is not resolved by size 5 in loess
     excitation: {wave: S, incidence: 0, amplitude: 1.0e-6}
   transient:
-    duration: 1.0
-    source: {x: -50, depth: 0, peak-frequency: 8, force: 1.0e6}
+    duration: 12.0
+    source: {x: -50, depth: 0, peak-frequency: 0.3, force: 1.0e6}   # 8 Hz is not resolved either
   ambient:
     noise: high
     band: [0.1, 20]
@@ -826,7 +826,9 @@ output:
 )";
   const Scenario sc = parse_scenario(yaml, "/tmp/voidsign-test/gallery.yaml");
   CHECK(sc.analyses.static_);
-  CHECK(sc.analyses.not_implemented == std::vector<std::string>{"transient", "ambient"});
+  CHECK(sc.analyses.not_implemented == std::vector<std::string>{"ambient"});
+  REQUIRE(sc.analyses.transient);
+  CHECK(sc.analyses.transient->delay_s == doctest::Approx(1.5 / 0.3));
   REQUIRE(sc.analyses.harmonic);
   CHECK(sc.analyses.harmonic->frequencies_hz.size() == 60);
   CHECK(sc.has_sensors);
@@ -834,7 +836,7 @@ output:
   CHECK(any_warning(sc, "key 'domain.length'"));
   CHECK(sc.mesh.near_void == 0.25);
   CHECK(sc.output_dir == std::filesystem::path("/tmp/voidsign-test/results/gallery"));
-  CHECK(sc.warnings.size() == 4);  // length, transient and ambient skipped, sensors
+  CHECK(sc.warnings.size() == 3);  // length, ambient skipped, sensors
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -1432,4 +1434,41 @@ TEST_CASE("harmonic: a band the mesh cannot resolve warns, then fails, and axisy
   const std::string axi_modal = "format: 1\nmodel: axisymmetric\ndomain: {width: 100, depth: 50}\nlayers:\n  - {material: chalk}\n"
                                 "analyses:\n  modal: {modes: 3}\n";
   CHECK(parse_scenario(axi_modal, k_file).analyses.modal);
+}
+
+TEST_CASE("transient analysis keys and their mistakes") {
+  const std::string v = "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\nmesh: {size: 4}\n";
+  const std::string src = "    source: {x: -20, depth: 0, peak-frequency: 5, force: 1.0e4, direction: [1, -1]}\n";
+  const Scenario sc = parse_scenario(k_head + v + "analyses:\n  transient:\n    duration: 1.5\n" + src +
+                                         "    snapshots: 0.25\n    record-interval: 0.002\n    receiver-spacing: 2\n",
+                                     k_file);
+  REQUIRE(sc.analyses.transient);
+  const TransientAnalysis& a = *sc.analyses.transient;
+  CHECK(a.duration_s == 1.5);
+  CHECK(a.peak_hz == 5);
+  CHECK(a.delay_s == doctest::Approx(0.3));
+  CHECK(a.direction[0] == doctest::Approx(std::sqrt(0.5)));
+  CHECK(a.direction[2] == doctest::Approx(-std::sqrt(0.5)));
+  CHECK(a.snapshot_interval_s == 0.25);
+  CHECK(a.record_interval_s == 0.002);
+  CHECK(a.receiver_spacing == 2);
+  CHECK(a.elements_per_wavelength > 5);
+  CHECK_FALSE(any_warning(sc, "no analysis that this version runs"));
+  CHECK_FALSE(any_warning(sc, "nothing loads the model"));
+
+  const std::string head = k_head + v + "analyses:\n  transient:\n";
+  expect_error(head + "    duration: 1.0\n", "duration", "analyses.transient.source", "peak-frequency");
+  expect_error(head + "    duration: -1\n" + src, "-1", "analyses.transient.duration", "greater than 0", 0);
+  expect_error(head + "    duration: 0.2\n" + src, "0.2", "analyses.transient.duration", "ends before the wavelet's peak");
+  expect_error(head + "    duration: 1.0\n    source: {x: 0, depth: 0, peak-frequency: 0, force: 1}\n", "0, force",
+               "analyses.transient.source.peak-frequency", "greater than 0");
+  expect_error(head + "    duration: 1.0\n    source: {x: 0, depth: 0, peak-frequency: 5, force: 1, direction: [0, 0]}\n",
+               "[0, 0]", "analyses.transient.source.direction", "must not be zero");
+  expect_error(head + "    duration: 1.0\n    snapshot: 0.1\n" + src, "snapshot", "analyses.transient.snapshot",
+               "did you mean 'snapshots'?");
+  expect_error(head + "    duration: 100\n    snapshots: 0.01\n" + src, "0.01", "analyses.transient.snapshots",
+               "more than 1000");
+  // The wavelet's band must be resolved by the mesh: 2.5 x 60 Hz in chalk with 4 m elements is not.
+  expect_error(head + "    duration: 1.0\n    source: {x: 0, depth: 0, peak-frequency: 60, force: 1}\n", "60",
+               "analyses.transient.source.peak-frequency", "element(s) of size 4 m per wavelength");
 }
