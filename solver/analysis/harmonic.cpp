@@ -185,13 +185,17 @@ struct Setup {
   std::vector<Complex> kstar;  // Σ (1 + 2iξ) K_e over the unstretched cells, on the pattern
   std::vector<double> mass;    // Σ M_e over the unstretched cells
   std::vector<char> fixed_ref, fixed_void;
-  // Sources.
-  long force_dof = -1;
-  std::array<double, 3> force_dir{0, 0, 0};
+  // Sources: the main load case first, then HarmonicProblem::extra_cases.
+  struct Case {
+    HarmonicProblem::LoadCase load;
+    long force_dof = -1;
+    std::array<double, 3> force_dir{0, 0, 0};
+    int wave_dof = 0;
+  };
+  std::vector<Case> cases;
   std::vector<LayerCell> layer_cells;
   std::vector<char> inside;    // per node: in the DRM box (total field)
   std::vector<char> physical;  // per node: belongs to a cell outside the PML
-  int wave_dof = 0;
   std::vector<int> outputs;
 };
 
@@ -274,15 +278,21 @@ void setup_drm(Setup& s) {
     s.layer_cells.push_back(std::move(lc));
   }
   if (s.layer_cells.empty()) throw std::invalid_argument("harmonic: the DRM box is empty or covers the whole block");
-  const bool s_wave = p.wave.type == IncidentWave::s;
-  if (p.wave.polarization < 0 || p.wave.polarization > 1)
-    throw std::invalid_argument("harmonic: plane-wave polarization must be 0 (x) or 1 (y)");
-  s.wave_dof = s_wave ? (three_d ? p.wave.polarization : 0) : vertical_dof(p.kinematics);
 }
 
-void setup_force(Setup& s, HarmonicResult& r) {
-  const HarmonicProblem& p = *s.p;
+void setup_wave(Setup& s, Setup::Case& c) {
+  const PlaneWave& w = c.load.wave;
+  if (w.polarization < 0 || w.polarization > 1)
+    throw std::invalid_argument("harmonic: plane-wave polarization must be 0 (x) or 1 (y)");
+  c.wave_dof = w.type == IncidentWave::s ? (s.m->dim() == 3 ? w.polarization : 0) : vertical_dof(s.p->kinematics);
+}
+
+// The node nearest the case's force point among those of cells outside voids and the PML;
+// returns it and its distance.
+std::pair<int, double> setup_force(Setup& s, Setup::Case& lc) {
+  const PointForce& force = lc.load.force;
   const mesh::Mesh& m = *s.m;
+  int node = -1;
   std::vector<char> usable(m.n_nodes(), 0);
   for (std::size_t c = 0; c < m.n_cells(); ++c)
     if (!s.pml_cell[c] && m.void_id[c] < 0)
@@ -291,36 +301,37 @@ void setup_force(Setup& s, HarmonicResult& r) {
   for (std::size_t n = 0; n < m.n_nodes(); ++n) {
     if (!usable[n]) continue;
     const auto& x = m.nodes[n];
-    const double dist = std::hypot(x[0] - p.force.point[0], m.dim() == 3 ? x[1] - p.force.point[1] : 0.0,
-                                   x[2] - p.force.point[2]);
+    const double dist = std::hypot(x[0] - force.point[0], m.dim() == 3 ? x[1] - force.point[1] : 0.0,
+                                   x[2] - force.point[2]);
     if (dist < best) {
       best = dist;
-      r.force_node = static_cast<int>(n);
+      node = static_cast<int>(n);
     }
   }
-  if (r.force_node < 0) throw std::invalid_argument("harmonic: no node for the point force");
-  r.force_offset = best;
-  const auto& dir = p.force.direction;
+  if (node < 0) throw std::invalid_argument("harmonic: no node for the point force");
+  const auto& dir = force.direction;
   const double len = m.dim() == 3 ? std::hypot(dir[0], dir[1], dir[2]) : std::hypot(dir[0], dir[2]);
   if (!(len > 0)) throw std::invalid_argument("harmonic: point-force direction is zero");
-  s.force_dir = {dir[0] / len, m.dim() == 3 ? dir[1] / len : 0.0, dir[2] / len};
-  s.force_dof = static_cast<long>(s.d) * r.force_node;
+  lc.force_dir = {dir[0] / len, m.dim() == 3 ? dir[1] / len : 0.0, dir[2] / len};
+  lc.force_dof = static_cast<long>(s.d) * node;
   for (int j = 0; j < s.d; ++j)
-    if (s.fixed_ref[static_cast<std::size_t>(s.force_dof + j)])
+    if (s.fixed_ref[static_cast<std::size_t>(lc.force_dof + j)])
       throw std::invalid_argument("harmonic: the point force acts on a fixed node");
+  return {node, best};
 }
 
-ComplexVector right_hand_side(const Setup& s, double omega) {
+ComplexVector right_hand_side(const Setup& s, double omega, const Setup::Case& lc_case) {
   const HarmonicProblem& p = *s.p;
   const mesh::Mesh& m = *s.m;
   ComplexVector f = ComplexVector::Zero(s.nd);
-  if (p.source == HarmonicProblem::Source::point_force) {
-    const double comp[3] = {s.force_dir[0], s.d == 3 ? s.force_dir[1] : s.force_dir[2], s.force_dir[2]};
-    for (int j = 0; j < s.d; ++j) f[s.force_dof + j] = p.force.amplitude * comp[j];
+  if (lc_case.load.source == HarmonicProblem::Source::point_force) {
+    const auto& dir = lc_case.force_dir;
+    const double comp[3] = {dir[0], s.d == 3 ? dir[1] : dir[2], dir[2]};
+    for (int j = 0; j < s.d; ++j) f[lc_case.force_dof + j] = lc_case.load.force.amplitude * comp[j];
     return f;
   }
   // Domain reduction method: f_b = −S_be u⁰_e, f_e = +S_eb u⁰_b on each cell of the layer.
-  const VerticalColumn column(p.layers, p.wave.type, omega, p.wave.amplitude);
+  const VerticalColumn column(p.layers, lc_case.load.wave.type, omega, lc_case.load.wave.amplitude);
   const int npc = m.npc();
   const int nd = npc * s.d;
   std::vector<Complex> u0(static_cast<std::size_t>(nd)), fe(static_cast<std::size_t>(nd));
@@ -328,7 +339,7 @@ ComplexVector right_hand_side(const Setup& s, double omega) {
     const int* v = m.cell(lc.cell);
     std::fill(u0.begin(), u0.end(), Complex(0.0));
     for (int a = 0; a < npc; ++a)
-      u0[static_cast<std::size_t>(s.d * a + s.wave_dof)] = column.displacement(m.z_max - m.nodes[v[a]][2]);
+      u0[static_cast<std::size_t>(s.d * a + lc_case.wave_dof)] = column.displacement(m.z_max - m.nodes[v[a]][2]);
     const Complex fac = hysteretic_factor(lc.damping);
     const double w2 = omega * omega;
     for (int r = 0; r < nd; ++r) {
@@ -407,42 +418,55 @@ struct Unit {
   bool voided;
 };
 
-// One (frequency, model) solve with the given solver and matrix storage.
+// One (frequency, model) factorisation with the given solver and matrix storage, and a solve per
+// load case.
 void solve_unit(const Setup& s, const Unit& u, ComplexLu& lu, ComplexMatrix& a, HarmonicResult& r) {
   const auto t0 = Clock::now();
   const HarmonicProblem& p = *s.p;
   const double omega = 2 * std::numbers::pi * p.frequencies_hz[u.freq];
   assemble_model(s, omega, u.voided, a);
-  ComplexVector f = right_hand_side(s, omega);
   const std::vector<char>& fixed = u.voided ? s.fixed_void : s.fixed_ref;
-  for (long j = 0; j < s.nd; ++j)
-    if (fixed[static_cast<std::size_t>(j)]) f[j] = 0;
   if (!lu.analysed()) lu.analyze(a);
-  ComplexSolution sol;
+  HarmonicModel& model = u.voided ? r.voided : r.reference;
+  const auto fail = [&](const char* what) {
+    std::ostringstream os;
+    os << "harmonic " << (u.voided ? "model with voids" : "model without voids") << " at " << p.frequencies_hz[u.freq]
+       << " Hz: " << what;
+    throw SolveFailure(os.str());
+  };
   try {
     lu.factorize(a);
-    sol = lu.solve_checked(f, p.max_residual);
   } catch (const ComplexSolveError& e) {
-    std::ostringstream os;
-    os << "harmonic " << (u.voided ? "model with voids" : "model without voids") << " at "
-       << p.frequencies_hz[u.freq] << " Hz: " << e.what();
-    throw SolveFailure(os.str());
+    fail(e.what());
   }
-  // Keep the output nodes; outside the DRM box add the free field back to the scattered field.
-  const mesh::Mesh& m = *s.m;
-  ComplexVector out(static_cast<long>(s.outputs.size()) * s.d);
-  std::unique_ptr<VerticalColumn> column;
-  if (p.source == HarmonicProblem::Source::plane_wave)
-    column = std::make_unique<VerticalColumn>(p.layers, p.wave.type, omega, p.wave.amplitude);
-  for (std::size_t k = 0; k < s.outputs.size(); ++k) {
-    const auto n = static_cast<std::size_t>(s.outputs[k]);
-    for (int j = 0; j < s.d; ++j) out[static_cast<long>(k) * s.d + j] = sol.x[static_cast<long>(n) * s.d + j];
-    if (column && !s.inside[n] && s.physical[n])
-      out[static_cast<long>(k) * s.d + s.wave_dof] += column->displacement(m.z_max - m.nodes[n][2]);
+  double worst = 0;
+  for (std::size_t c = 0; c < s.cases.size(); ++c) {
+    const Setup::Case& lc = s.cases[c];
+    ComplexVector f = right_hand_side(s, omega, lc);
+    for (long j = 0; j < s.nd; ++j)
+      if (fixed[static_cast<std::size_t>(j)]) f[j] = 0;
+    ComplexSolution sol;
+    try {
+      sol = lu.solve_checked(f, p.max_residual);
+    } catch (const ComplexSolveError& e) {
+      fail(e.what());
+    }
+    worst = std::max(worst, sol.residual);
+    // Keep the output nodes; outside the DRM box add the free field back to the scattered field.
+    const mesh::Mesh& m = *s.m;
+    ComplexVector out(static_cast<long>(s.outputs.size()) * s.d);
+    std::unique_ptr<VerticalColumn> column;
+    if (lc.load.source == HarmonicProblem::Source::plane_wave)
+      column = std::make_unique<VerticalColumn>(p.layers, lc.load.wave.type, omega, lc.load.wave.amplitude);
+    for (std::size_t k = 0; k < s.outputs.size(); ++k) {
+      const auto n = static_cast<std::size_t>(s.outputs[k]);
+      for (int j = 0; j < s.d; ++j) out[static_cast<long>(k) * s.d + j] = sol.x[static_cast<long>(n) * s.d + j];
+      if (column && !s.inside[n] && s.physical[n])
+        out[static_cast<long>(k) * s.d + lc.wave_dof] += column->displacement(m.z_max - m.nodes[n][2]);
+    }
+    (c == 0 ? model.u[u.freq] : model.u_extra[c - 1][u.freq]) = std::move(out);
   }
-  HarmonicModel& model = u.voided ? r.voided : r.reference;
-  model.u[u.freq] = std::move(out);
-  model.residual[u.freq] = sol.residual;
+  model.residual[u.freq] = worst;
   model.seconds[u.freq] = seconds_since(t0);
   model.factor_seconds[u.freq] = lu.factorize_seconds();
 }
@@ -512,11 +536,27 @@ void prepare(const HarmonicProblem& p, Setup& s, HarmonicResult& r) {
         for (int j = 0; j < s.d; ++j) s.fixed_void[n * static_cast<std::size_t>(s.d) + static_cast<std::size_t>(j)] = 1;
   }
 
-  if (p.source == HarmonicProblem::Source::plane_wave) {
+  s.cases.push_back({{p.source, p.force, p.wave}});
+  for (const auto& lc : p.extra_cases) s.cases.push_back({lc});
+  bool any_wave = false;
+  for (const auto& c : s.cases) any_wave = any_wave || c.load.source == HarmonicProblem::Source::plane_wave;
+  if (any_wave) {
     setup_drm(s);
     r.drm_inside = s.inside;
-  } else {
-    setup_force(s, r);
+  }
+  for (std::size_t c = 0; c < s.cases.size(); ++c) {
+    std::pair<int, double> node{-1, 0.0};
+    if (s.cases[c].load.source == HarmonicProblem::Source::plane_wave)
+      setup_wave(s, s.cases[c]);
+    else
+      node = setup_force(s, s.cases[c]);
+    if (c == 0) {
+      r.force_node = node.first;
+      r.force_offset = node.second;
+    } else {
+      r.extra_force_nodes.push_back(node.first);
+      r.extra_force_offsets.push_back(node.second);
+    }
   }
   if (p.output_nodes.empty()) {
     s.outputs.resize(m.n_nodes());
@@ -594,6 +634,7 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
   for (HarmonicModel* model : {&r.reference, &r.voided}) {
     if (model == &r.voided && !p.with_voids) break;
     model->u.resize(nf);
+    model->u_extra.assign(p.extra_cases.size(), std::vector<ComplexVector>(nf));
     model->residual.assign(nf, 0.0);
     model->seconds.assign(nf, 0.0);
     model->factor_seconds.assign(nf, 0.0);
@@ -688,7 +729,7 @@ HarmonicSystem harmonic_system(const HarmonicProblem& p, double frequency_hz, bo
   const double omega = 2 * std::numbers::pi * frequency_hz;
   sys.matrix = s.pattern;
   assemble_model(s, omega, voided, sys.matrix);
-  sys.rhs = right_hand_side(s, omega);
+  sys.rhs = right_hand_side(s, omega, s.cases.front());
   const std::vector<char>& fixed = voided ? s.fixed_void : s.fixed_ref;
   for (long j = 0; j < s.nd; ++j)
     if (fixed[static_cast<std::size_t>(j)]) sys.rhs[j] = 0;

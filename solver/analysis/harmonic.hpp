@@ -116,6 +116,16 @@ struct HarmonicProblem {
   int pml_order = 2;             ///< polynomial grading m
   double pml_real_stretch = 0;   ///< κ₀
 
+  /// Further load cases solved with the same factorisation at every frequency (e.g. the two
+  /// wave types, or sources on both sides, of an ambient-noise wavefield). Each is a point force
+  /// or a plane wave as above; results in HarmonicModel::u_extra.
+  struct LoadCase {
+    Source source = Source::plane_wave;
+    PointForce force;
+    PlaneWave wave;
+  };
+  std::vector<LoadCase> extra_cases;
+
   bool with_voids = true;         ///< also solve the model with voids
   std::vector<int> output_nodes;  ///< nodes whose displacements are kept; empty = all
   FrequencyLoop loop = FrequencyLoop::automatic;
@@ -130,7 +140,9 @@ struct HarmonicModel {
   /// wave, the free field is added back outside the DRM box); inside the PML the stretched,
   /// non-physical field.
   std::vector<ComplexVector> u;
-  std::vector<double> residual;  ///< per frequency, ‖S u − f‖/‖f‖
+  /// The same for each of HarmonicProblem::extra_cases: u_extra[case][frequency].
+  std::vector<std::vector<ComplexVector>> u_extra;
+  std::vector<double> residual;  ///< per frequency, ‖S u − f‖/‖f‖, worst over the load cases
   std::vector<double> seconds;   ///< per frequency: assembly + factorisation + solve, wall time
   std::vector<double> factor_seconds;  ///< per frequency: the numeric factorisation alone
   std::vector<char> active;      ///< per cell
@@ -152,6 +164,9 @@ struct HarmonicResult {
   double pml_wavelengths = 0;
   int force_node = -1;               ///< point force: the node it acts on
   double force_offset = 0;           ///< its distance from the requested point [m]
+  /// The same for each extra load case (−1 and 0 for plane waves).
+  std::vector<int> extra_force_nodes;
+  std::vector<double> extra_force_offsets;
   std::size_t n_dofs = 0;
   double setup_seconds = 0;       ///< pattern and frequency-independent parts
   double analyse_seconds = 0;     ///< symbolic analyses (all solver instances)
