@@ -347,11 +347,9 @@ nlohmann::json modal_summary(const ModalRun& run) {
 // ---------------------------------------------------------------------------------------------
 // Harmonic
 
-namespace {
-
 // Absorbing band: the scenario's, or max(4 h, min(0.15 W, 0.25 D)) reduced until the DRM box
 // (the band's inner edge less 3 far-field cells) still holds every void.
-double choose_band(const Scenario& s, const mesh::Mesh& m) {
+double absorbing_band(const Scenario& s, const mesh::Mesh& m, double requested, const std::string& key) {
   const double h = s.mesh.size;
   double reach_x = 0, reach_y = 0, reach_z = 0;
   for (std::size_t c = 0; c < m.n_cells(); ++c) {
@@ -368,22 +366,34 @@ double choose_band(const Scenario& s, const mesh::Mesh& m) {
   if (m.dim() == 3) room = std::min(room, std::min(-m.y_min, m.y_max) - reach_y);
   room -= 4 * h;  // DRM box margin: two of the largest cells, one layer of DRM cells, one to spare
   const std::string block = s.model == Model::three_d ? "domain.width, domain.length or domain.depth" : "domain.width or domain.depth";
-  if (s.analyses.harmonic->absorbing > 0) {
-    if (s.analyses.harmonic->absorbing > room)
-      throw InputError(s.file.string() + ": key 'analyses.harmonic.absorbing': a band of " + fmt(s.analyses.harmonic->absorbing) +
+  if (requested > 0) {
+    if (requested > room)
+      throw InputError(s.file.string() + ": key '" + key + ".absorbing': a band of " + fmt(requested) +
                        " m leaves no room between it and the voids (at most " + fmt(std::max(room, 0.0)) +
                        " m fits): make it thinner or enlarge " + block);
-    return s.analyses.harmonic->absorbing;
+    return requested;
   }
   double band = std::max(4 * h, std::min(0.15 * 2 * w, 0.25 * depth));
   band = std::min(band, room);
   if (band < 2 * h)
-    throw InputError(s.file.string() + ": key 'analyses.harmonic': the block is too small for an absorbing band of at least two "
+    throw InputError(s.file.string() + ": key '" + key + "': the block is too small for an absorbing band of at least two "
                      "elements (" + fmt(2 * h) + " m) outside the voids: enlarge " + block + " or reduce mesh.size");
   return band;
 }
 
-}  // namespace
+
+std::vector<int> surface_points(const solver::HarmonicResult& r, const mesh::Mesh& m) {
+  std::vector<int> pos(m.n_nodes(), -1), out;
+  for (std::size_t k = 0; k < r.output_nodes.size(); ++k) pos[static_cast<std::size_t>(r.output_nodes[k])] = static_cast<int>(k);
+  for (int n : m.surface_nodes) {
+    const auto& q = m.nodes[static_cast<std::size_t>(n)];
+    if (pos[static_cast<std::size_t>(n)] < 0 || solver::in_pml(r.pml, {q[0], q[1], q[2] - 1e-9})) continue;
+    bool in_band = q[0] < r.pml.x_lo - 1e-9 || q[0] > r.pml.x_hi + 1e-9;
+    if (m.dim() == 3) in_band = in_band || q[1] < r.pml.y_lo - 1e-9 || q[1] > r.pml.y_hi + 1e-9;
+    if (!in_band) out.push_back(pos[static_cast<std::size_t>(n)]);
+  }
+  return out;
+}
 
 HarmonicRun run_harmonic(const Scenario& s, const mesh::Mesh& m, ProgressLine* progress) {
   const HarmonicAnalysis& a = *s.analyses.harmonic;
@@ -407,7 +417,7 @@ HarmonicRun run_harmonic(const Scenario& s, const mesh::Mesh& m, ProgressLine* p
     p.force.direction = a.direction;
     p.force.amplitude = a.force;
   }
-  run.pml_thickness = choose_band(s, m);
+  run.pml_thickness = absorbing_band(s, m, a.absorbing, "analyses.harmonic");
   p.pml_thickness = run.pml_thickness;
   try {
     run.result = solver::solve_harmonic(p, [&](std::string_view step, double f) {
@@ -419,16 +429,7 @@ HarmonicRun run_harmonic(const Scenario& s, const mesh::Mesh& m, ProgressLine* p
     throw InputError(s.file.string() + ": key 'analyses.harmonic': " + e.what());
   }
   if (progress) progress->done();
-  // Surface nodes outside the band, in the mesh's surface order (by x, then y).
-  std::vector<int> pos(m.n_nodes(), -1);
-  for (std::size_t k = 0; k < run.result.output_nodes.size(); ++k) pos[static_cast<std::size_t>(run.result.output_nodes[k])] = static_cast<int>(k);
-  for (int n : m.surface_nodes) {
-    const auto& q = m.nodes[static_cast<std::size_t>(n)];
-    if (pos[static_cast<std::size_t>(n)] < 0 || solver::in_pml(run.result.pml, {q[0], q[1], q[2] - 1e-9})) continue;
-    bool in_band = q[0] < run.result.pml.x_lo - 1e-9 || q[0] > run.result.pml.x_hi + 1e-9;
-    if (m.dim() == 3) in_band = in_band || q[1] < run.result.pml.y_lo - 1e-9 || q[1] > run.result.pml.y_hi + 1e-9;
-    if (!in_band) run.surface.push_back(pos[static_cast<std::size_t>(n)]);
-  }
+  run.surface = surface_points(run.result, m);
   if (run.result.force_node >= 0 && run.result.force_offset > 0.5 * s.mesh.size)
     run.warnings.push_back("harmonic: the source acts at the nearest node, " + fmt(run.result.force_offset) +
                            " m from the point asked for");

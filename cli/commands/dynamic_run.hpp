@@ -64,6 +64,15 @@ void write_harmonic_outputs(const HarmonicRun& run, const Scenario& s, const mes
 /// The "harmonic" block of summary.json.
 nlohmann::json harmonic_summary(const HarmonicRun& run, const Scenario& s, const mesh::Mesh& m);
 
+/// Thickness [m] of the absorbing band for a frequency-domain analysis: `requested` when > 0 and
+/// it fits, else max(4 h, min(0.15 W, 0.25 D)) reduced until the voids stay 4 h inside its inner
+/// edge. Throws InputError (naming `key`, e.g. "analyses.harmonic") when nothing fits.
+double absorbing_band(const Scenario& s, const mesh::Mesh& m, double requested, const std::string& key);
+
+/// Indices into r.output_nodes of the surface nodes outside the absorbing band, in the mesh's
+/// surface order (by x, then y).
+std::vector<int> surface_points(const solver::HarmonicResult& r, const mesh::Mesh& m);
+
 /// Peak surface anomaly |Δu| (complex vector norm) at one frequency [m] and where.
 struct HarmonicPeak {
   double f_hz = 0, anomaly = 0, reference = 0, x = 0, y = 0;

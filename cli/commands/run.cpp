@@ -8,6 +8,7 @@
 #include <optional>
 #include <sstream>
 
+#include "cli/commands/ambient_run.hpp"
 #include "cli/commands/commands.hpp"
 #include "cli/commands/dynamic_run.hpp"
 #include "cli/commands/model_setup.hpp"
@@ -110,6 +111,22 @@ void print_harmonic(const HarmonicRun& h, const mesh::Mesh& mesh, const fs::path
   std::printf("Results in %s/harmonic/ (surface.csv, fields.pvd)\n", dir.string().c_str());
 }
 
+void print_ambient(const AmbientRun& a, const mesh::Mesh& mesh, const fs::path& dir) {
+  std::printf("\nAmbient signature (with voids minus without), ground surface, noise %s, %zu frequencies %.4g-%.4g Hz:\n",
+              a.noise_name.c_str(), a.frequencies_hz.size(), a.frequencies_hz.front(), a.frequencies_hz.back());
+  const std::size_t d = static_cast<std::size_t>(a.d);
+  for (const AmbientWavefield& w : a.fields) {
+    const auto& b = w.bands.front();
+    const std::size_t q = w.peak_point;
+    const auto& x = mesh.nodes[static_cast<std::size_t>(a.points[q])];
+    const double dz = b.anomaly[q * d + d - 1], z = b.reference[q * d + d - 1];
+    std::printf("  %-14s largest vertical anomaly RMS %10.3g m at x = %.2f m%s; ambient there %.3g m (ratio %.2g)\n", w.name.c_str(), dz,
+                x[0], a.d == 3 ? (", y = " + std::to_string(x[1])).c_str() : "", z, z > 0 ? dz / z : 0.0);
+  }
+  std::printf("  %-34s %12.2g\n", "solve residual (worst)", a.residual);
+  std::printf("Results in %s/ambient/ (surface.csv, spectra.csv)\n", dir.string().c_str());
+}
+
 void print_transient(const TransientRun& t, const mesh::Mesh& mesh, const fs::path& dir) {
   const TransientPeak pk = transient_peak(t, mesh);
   std::printf("\nTransient signature (with voids minus without), ground surface, %d steps of %.3g s:\n", t.result.n_steps,
@@ -135,9 +152,9 @@ int run_command(const RunOptions& opt) {
   const fs::path dir = output_dir_for(opt, s.file.parent_path(), s.output_dir);
   if (fs::exists(dir) && !(fs::is_directory(dir) && fs::is_empty(dir)) && !opt.force)
     throw InputError(dir.string() + ": output folder exists and is not empty; use --force to replace it");
-  if (!s.analyses.static_ && !s.analyses.modal && !s.analyses.harmonic && !s.analyses.transient)
-    throw InputError(s.file.string() + ": key 'analyses': no analysis this version runs was requested (add 'static: {}', "
-                                       "'modal: {}', 'harmonic: ...' or 'transient: ...')");
+  if (!s.analyses.static_ && !s.analyses.modal && !s.analyses.harmonic && !s.analyses.transient && !s.analyses.ambient)
+    throw InputError(s.file.string() + ": key 'analyses': no analysis was requested (add 'static: {}', 'modal: {}', "
+                                       "'harmonic: ...', 'transient: ...' or 'ambient: ...')");
   for (const auto& w : s.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
   check_budget(s, estimate_run(s));
 
@@ -164,6 +181,11 @@ int run_command(const RunOptions& opt) {
     transient = run_transient(s, *run.mesh, &progress);
     run.warnings.insert(run.warnings.end(), transient->warnings.begin(), transient->warnings.end());
   }
+  std::optional<AmbientRun> ambient;
+  if (s.analyses.ambient) {
+    ambient = run_ambient(s, *run.mesh, &progress);
+    run.warnings.insert(run.warnings.end(), ambient->warnings.begin(), ambient->warnings.end());
+  }
   for (const auto& w : run.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
 
   // Everything goes to a staging folder that replaces DIR only when complete.
@@ -177,6 +199,7 @@ int run_command(const RunOptions& opt) {
     if (modal) write_modal_outputs(*modal, s, *run.mesh, staging);
     if (harmonic) write_harmonic_outputs(*harmonic, s, *run.mesh, staging);
     if (transient) write_transient_outputs(*transient, s, *run.mesh, staging);
+    if (ambient) write_ambient_outputs(*ambient, s, *run.mesh, staging);
     nlohmann::json j;
     j["format"] = 1;
     j["tool_version"] = VOIDSIGN_VERSION;
@@ -199,6 +222,7 @@ int run_command(const RunOptions& opt) {
     if (modal) j["modal"] = modal_summary(*modal);
     if (harmonic) j["harmonic"] = harmonic_summary(*harmonic, s, *run.mesh);
     if (transient) j["transient"] = transient_summary(*transient, s, *run.mesh);
+    if (ambient) j["ambient"] = ambient_summary(*ambient, s, *run.mesh);
     j["detectability"] = nlohmann::json::array();
     std::vector<std::string> warnings = s.warnings;
     warnings.insert(warnings.end(), run.warnings.begin(), run.warnings.end());
@@ -214,6 +238,7 @@ int run_command(const RunOptions& opt) {
                       {"modal", modal ? modal->seconds : 0.0},
                       {"harmonic", harmonic ? harmonic->result.total_seconds : 0.0},
                       {"transient", transient ? transient->seconds : 0.0},
+                      {"ambient", ambient ? ambient->seconds : 0.0},
                       {"write", write_s},
                       {"total", std::chrono::duration<double>(std::chrono::steady_clock::now() - t_start).count()}};
     write_text_atomic(staging / "summary.json", j.dump(2) + "\n");
@@ -234,6 +259,7 @@ int run_command(const RunOptions& opt) {
   if (modal) print_modal(*modal, dir);
   if (harmonic) print_harmonic(*harmonic, *run.mesh, dir);
   if (transient) print_transient(*transient, *run.mesh, dir);
+  if (ambient) print_ambient(*ambient, *run.mesh, dir);
   if (!s.analyses.static_) std::printf("Caution: %s\n", caution_text);
   return exit_ok;
 }

@@ -18,6 +18,7 @@
 #include "cli/errors.hpp"
 #include "cli/scenario/catalogue.hpp"
 #include "cli/scenario/scenario.hpp"
+#include "cli/scenario/psd_table.hpp"
 #include "cli/scenario/sha256.hpp"
 #include "cli/scenario/suggest.hpp"
 
@@ -1405,6 +1406,74 @@ TransientAnalysis parse_transient(const Map& m, bool three_d) {
   return a;
 }
 
+AmbientAnalysis parse_ambient(const Map& m, const fs::path& base_dir) {
+  m.allow({"noise", "band", "wavefield", "per-octave", "absorbing"});
+  AmbientAnalysis a;
+  a.loc = m.self().loc();
+  bool table = false;
+  std::optional<Field> noise_field = m.get("noise");
+  if (noise_field) {
+    if (noise_field->node.IsMap()) {
+      const Map tm = noise_field->map();
+      tm.allow({"table"});
+      const Field tf = tm.need("table", "a CSV file of f_hz and a PSD column (docs/instruments.md)");
+      const std::string name = tf.text();
+      if (name.empty()) tf.fail("the table's file name is empty");
+      fs::path path(name);
+      if (path.is_relative()) path = base_dir / path;
+      a.table_file = path.lexically_normal();
+      std::error_code ec;
+      if (!fs::exists(a.table_file, ec)) tf.fail("no such PSD table: " + a.table_file.string());
+      a.noise = AmbientAnalysis::Noise::table;
+      table = true;
+    } else {
+      a.noise = noise_field->choice({"high", "low"}, "noise model") == "low" ? AmbientAnalysis::Noise::low
+                                                                              : AmbientAnalysis::Noise::high;
+    }
+  }
+  if (auto bf = m.get("band")) {
+    const auto items = bf->list();
+    if (items.size() != 2) bf->fail("expected [lowest, highest] frequency in Hz, found " + std::to_string(items.size()) + " value(s)");
+    a.band_lo_hz = items[0].positive();
+    a.band_hi_hz = items[1].positive();
+    if (!(a.band_hi_hz > a.band_lo_hz))
+      items[1].fail("the band's upper end (" + num(a.band_hi_hz) + " Hz) must be above its lower end (" + num(a.band_lo_hz) + " Hz)");
+    if (a.band_hi_hz / a.band_lo_hz > 1e4) bf->fail("the band spans more than four decades; split it into separate runs");
+  }
+  if (auto wf = m.get("wavefield")) {
+    const std::string w = wf->choice({"both", "body-waves", "surface-waves"}, "wavefield");
+    a.body_waves = w != "surface-waves";
+    a.surface_waves = w != "body-waves";
+  }
+  if (auto pf = m.get("per-octave")) {
+    a.per_octave = pf->whole();
+    if (a.per_octave < 2 || a.per_octave > 48) pf->fail("between 2 and 48 frequencies per octave, got " + std::to_string(a.per_octave));
+  }
+  if (auto f = m.get("absorbing")) a.absorbing = f->positive();
+  const double octaves = std::log2(a.band_hi_hz / a.band_lo_hz);
+  const int n = std::max(3, static_cast<int>(std::ceil(a.per_octave * octaves - 1e-9)) + 1);
+  for (int k = 0; k < n; ++k) a.frequencies_hz.push_back(a.band_lo_hz * std::pow(a.band_hi_hz / a.band_lo_hz, static_cast<double>(k) / (n - 1)));
+  a.frequencies_hz.back() = a.band_hi_hz;
+
+  const Field band_key = m.get("band") ? *m.get("band") : m.self();
+  if (table) {
+    const PsdTable t = read_psd_table(a.table_file);
+    const SourceLoc l = band_key.loc();
+    check_band_in_table(t, a.band_lo_hz, a.band_hi_hz,
+                        band_key.ctx->file + ":" + std::to_string(l.line) + ":" + std::to_string(l.column) + ": key '" + band_key.path + "'");
+    a.table = t.psd;
+  } else {
+    // Peterson's tables start at a period of 0.1 s (10 Hz); a longer band than 1e5 s is not asked for here.
+    if (a.band_lo_hz < 1e-5) band_key.fail("the standard noise models are defined from 1e-5 Hz (a period of 100000 s) up");
+    if (a.band_hi_hz > 10 + 1e-9) {
+      a.extrapolated = true;
+      band_key.warn("Peterson's (1993) noise models end at 10 Hz (a period of 0.1 s); above it their shortest-period segment "
+                    "is extended, an assumption (give a measured site spectrum as noise: {table: psd.csv} to avoid it)");
+    }
+  }
+  return a;
+}
+
 // Elements per S wavelength at the highest frequency f_max in the slowest layer, with the
 // far-field size as the element size (the mesher's largest): quadratic elements need 5, linear 10
 // (docs/scenario-format.md). Below the minimum: a warning on `key`; below half of it: an error.
@@ -1726,7 +1795,7 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
     if (v.contents != Contents::empty) any_load = true;
 
   // analyses
-  std::optional<Field> harmonic_field, transient_field;
+  std::optional<Field> harmonic_field, transient_field, ambient_field;
   if (auto af = top.get("analyses")) {
     const Map am = af->map(true);
     am.allow({"static", "modal", "harmonic", "transient", "ambient"});
@@ -1747,14 +1816,16 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
       } else if (name == "transient") {
         sc.analyses.transient = parse_transient(options, three_d);
         transient_field = f;
-      } else {
-        sc.analyses.not_implemented.push_back(name);
-        warn_at(ctx, f.key_mark, f.path,
-                "the " + name + " analysis is not implemented in this version; skipped");
+      } else if (name == "ambient") {
+        if (axi)
+          f.fail("the ambient analysis is not available for axisymmetric models: it is built on incident plane waves and "
+                 "sources on both sides, which are not axisymmetric (use model: plane-strain or 3d)");
+        sc.analyses.ambient = parse_ambient(options, sc.file.parent_path());
+        ambient_field = f;
       }
     }
-    if (!sc.analyses.static_ && !sc.analyses.modal && !sc.analyses.harmonic && !sc.analyses.transient)
-      af->warn("no analysis that this version runs (static, modal, harmonic and transient are implemented)");
+    if (!sc.analyses.static_ && !sc.analyses.modal && !sc.analyses.harmonic && !sc.analyses.transient && !sc.analyses.ambient)
+      af->warn("the analyses block requests no analysis (static, modal, harmonic, transient, ambient)");
   } else {
     sc.analyses.static_ = true;
   }
@@ -1837,6 +1908,12 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
     TransientAnalysis& a = *sc.analyses.transient;
     a.elements_per_wavelength = check_resolution(*transient_field->map().get("source")->map().get("peak-frequency"), sc,
                                                  2.5 * a.peak_hz, "2.5 x the wavelet's peak frequency");
+  }
+  if (ambient_field) {
+    AmbientAnalysis& a = *sc.analyses.ambient;
+    const Map am = ambient_field->map(true);
+    a.elements_per_wavelength = check_resolution(am.get("band") ? *am.get("band") : *ambient_field, sc, a.band_hi_hz,
+                                                 "the top of the band");
   }
 
   // sensors, output

@@ -10,6 +10,8 @@
 #include <string>
 #include <vector>
 
+#include "solver/signals/noise_model.hpp"
+
 namespace voidsign::cli {
 
 /// Where a value came from in the YAML file, for messages after parsing (1-based).
@@ -133,12 +135,28 @@ struct TransientAnalysis {
   SourceLoc loc, time_step_loc;  ///< of the block and of its time-step value
 };
 
+/// `analyses.ambient`: ambient ground motion through the harmonic transfer functions.
+struct AmbientAnalysis {
+  enum class Noise { high, low, table } noise = Noise::high;  ///< Peterson (1993) NHNM, NLNM, or a user table
+  solver::Psd table;            ///< noise = table: the PSD as read (any quantity, SI)
+  std::filesystem::path table_file;
+  double band_lo_hz = 0.1, band_hi_hz = 10;  ///< the analysis band [Hz]
+  bool body_waves = true;       ///< vertically incident P and S waves
+  bool surface_waves = true;    ///< surface sources on both sides (3d: around the voids)
+  int per_octave = 6;           ///< frequencies per octave over the band
+  double absorbing = 0;         ///< absorbing band thickness [m] (0 = choose, as for harmonic)
+  double elements_per_wavelength = 0;  ///< at band_hi_hz
+  std::vector<double> frequencies_hz;  ///< log-spaced over the band, both ends included
+  bool extrapolated = false;    ///< the band reaches above 10 Hz, where Peterson's tables end
+  SourceLoc loc;
+};
+
 struct Analyses {
   bool static_ = false;
   std::optional<ModalAnalysis> modal;
   std::optional<HarmonicAnalysis> harmonic;
   std::optional<TransientAnalysis> transient;
-  std::vector<std::string> not_implemented;  ///< analyses named in the file that this version skips
+  std::optional<AmbientAnalysis> ambient;
 };
 
 struct Scenario {

@@ -359,3 +359,76 @@ mesh: {order: 2, size: 4, near-void: 0.5, surface: 1.5}
   CHECK(c.out.find("analyses.transient.duration") != std::string::npos);
   fs::remove_all(d);
 }
+
+TEST_CASE("an ambient run matches the noise at the surface without voids and reports the anomaly per band") {
+  const std::string base = R"(format: 1
+title: ambient test
+model: plane-strain
+domain: {width: 120, depth: 40}
+layers:
+  - {material: chalk}
+voids:
+  - {shape: circle, x: 0, depth: 6, radius: 2}
+mesh: {order: 2, size: 4, near-void: 0.5, surface: 1.5}
+)";
+  const fs::path d = temp_dir("ambient");
+  // A user table: flat acceleration PSD 1e-12 (m/s^2)^2/Hz from 0.5 to 20 Hz.
+  write_file(d, "site.csv", "# measured site spectrum (invented)\nf_hz,accel_psd_m2_s4_hz\n0.5,1e-12\n20,1e-12\n");
+  const fs::path scn = write_file(d, "a.yaml", base + R"(analyses:
+  ambient:
+    noise: {table: site.csv}
+    band: [1, 8]
+    per-octave: 4
+)");
+  const fs::path out = d / "out";
+  Cmd c = run("run " + scn.string() + " --out " + out.string());
+  INFO(c.out);
+  REQUIRE(c.rc == 0);
+  const std::string surf = read(out / "ambient/surface.csv");
+  CHECK(surf.find("units: SI") != std::string::npos);
+  CHECK(surf.find("\nwavefield,band_lo_hz,band_hi_hz,x,rms_x,rms_z,rms_x_ref,rms_z_ref,rms_dx,rms_dz\n") != std::string::npos);
+  CHECK(read(out / "ambient/spectra.csv").find("\nwavefield,f_hz,x,noise_psd_z,psd_z,psd_z_ref,psd_dz") != std::string::npos);
+  const auto j = nlohmann::json::parse(read(out / "summary.json"))["ambient"];
+  CHECK(j["frequencies"].get<int>() == 13);  // 4 per octave over 3 octaves, both ends
+  CHECK(j["residual"].get<double>() < 1e-8);
+  // Displacement RMS of a flat acceleration PSD A over [f1, f2]: sqrt(A/(2 pi)^4 (f1^-3 - f2^-3)/3).
+  const double w4 = std::pow(2 * M_PI, 4);
+  const double expected = std::sqrt(1e-12 / w4 * (1.0 - std::pow(8.0, -3)) / 3);
+  CHECK(j["noise_rms_z_band"].get<double>() == doctest::Approx(expected).epsilon(0.02));
+  for (const char* w : {"body-waves", "surface-waves"}) {
+    const auto& f = j["wavefields"][w];
+    CHECK(f["peak_vertical"]["rms_dz"].get<double>() > 0);
+    CHECK(f["peak_vertical"]["relative"].get<double>() < 1);
+    CHECK(f["bands"].size() == 5);  // the band, then octaves centred on 1, 2, 4 and 8 Hz, clipped to it
+  }
+  // Matched at the surface point above the void: the model without voids reproduces the noise there.
+  const double x0 = j["matched_at"]["x"].get<double>();
+  CHECK(std::abs(x0) < 1.0);
+  const std::string head = "\nwavefield,band_lo_hz,band_hi_hz,x,rms_x,rms_z,rms_x_ref,rms_z_ref,rms_dx,rms_dz\n";
+  std::istringstream rows(surf.substr(surf.find(head) + head.size()));
+  std::string line;
+  int matched = 0;
+  while (std::getline(rows, line)) {
+    double v[10];
+    std::istringstream ls(line);
+    char comma;
+    for (double& x : v) ls >> x >> comma;
+    if (v[1] == 1 && v[2] == 8 && std::abs(v[3] - x0) < 1e-9) {
+      CHECK(v[7] == doctest::Approx(j["noise_rms_z_band"].get<double>()).epsilon(1e-9));
+      ++matched;
+    }
+  }
+  CHECK(matched == 2);
+
+  // Bad input: a band outside the table; an unknown wavefield.
+  const fs::path bad = write_file(d, "bad.yaml", base + "analyses:\n  ambient:\n    noise: {table: site.csv}\n    band: [0.1, 8]\n");
+  c = run("run " + bad.string() + " --out " + (d / "o2").string());
+  CHECK(c.rc == 2);
+  CHECK(c.out.find("bad.yaml:13:11: key 'analyses.ambient.band'") != std::string::npos);
+  const fs::path bad2 = write_file(d, "bad2.yaml", base + "analyses:\n  ambient:\n    wavefield: diffuse\n");
+  c = run("run " + bad2.string() + " --out " + (d / "o3").string());
+  CHECK(c.rc == 2);
+  CHECK(c.out.find("analyses.ambient.wavefield") != std::string::npos);
+  CHECK(!fs::exists(d / "o2"));
+  fs::remove_all(d);
+}

@@ -272,7 +272,7 @@ output: {dir: out/gallery}
   CHECK(sc.loads.ground_loss[0].percent == 1.0);
 
   CHECK(sc.analyses.static_);
-  CHECK(sc.analyses.not_implemented.empty());
+  CHECK_FALSE(sc.analyses.ambient);
   CHECK(sc.mesh.order == 1);
   CHECK(sc.mesh.size == 4);
   CHECK(sc.mesh.near_void == 0.2);
@@ -726,10 +726,10 @@ TEST_CASE("analyses, sensors and mesh warnings") {
           "mesh: {size: 1, near-void: 2}\n",
       k_file);
   CHECK(sc.analyses.static_);
-  CHECK(sc.analyses.not_implemented == std::vector<std::string>{"ambient"});
+  REQUIRE(sc.analyses.ambient);
+  CHECK(sc.analyses.ambient->noise == AmbientAnalysis::Noise::high);
   REQUIRE(sc.analyses.modal);
   CHECK(sc.analyses.modal->modes == 10);
-  CHECK(any_warning(sc, "the ambient analysis is not implemented"));
   CHECK(sc.has_sensors);
   CHECK(any_warning(sc, "detectability is computed by a later version"));
   CHECK(any_warning(sc, "near-void 2 m is coarser than the far-field size 1 m"));
@@ -737,9 +737,9 @@ TEST_CASE("analyses, sensors and mesh warnings") {
   const Scenario modal_only = parse_scenario(k_head + v + "analyses: {modal: {}}\n", k_file);
   CHECK_FALSE(modal_only.analyses.static_);
   CHECK(modal_only.analyses.modal);
-  CHECK_FALSE(any_warning(modal_only, "no analysis that this version runs"));
-  const Scenario ambient_only = parse_scenario(k_head + v + "analyses: {ambient: {}}\n", k_file);
-  CHECK(any_warning(ambient_only, "no analysis that this version runs"));
+  CHECK_FALSE(any_warning(modal_only, "requests no analysis"));
+  const Scenario none = parse_scenario(k_head + v + "analyses: {}\n", k_file);
+  CHECK(any_warning(none, "requests no analysis"));
   expect_error(k_head + v + "analyses: {modal: 10}\n", "10", "analyses.modal",
                "expected a mapping");
   expect_error(k_head + v + "analyses: {statics: {}}\n", "statics", "analyses.statics",
@@ -811,7 +811,7 @@ analyses:
     source: {x: -50, depth: 0, peak-frequency: 0.3, force: 1.0e6}   # 8 Hz is not resolved either
   ambient:
     noise: high
-    band: [0.1, 20]
+    band: [0.1, 0.5]   # as for harmonic
 mesh:
   order: 2
   size: 5
@@ -826,7 +826,9 @@ output:
 )";
   const Scenario sc = parse_scenario(yaml, "/tmp/voidsign-test/gallery.yaml");
   CHECK(sc.analyses.static_);
-  CHECK(sc.analyses.not_implemented == std::vector<std::string>{"ambient"});
+  REQUIRE(sc.analyses.ambient);
+  CHECK_FALSE(sc.analyses.ambient->extrapolated);
+  CHECK(sc.analyses.ambient->frequencies_hz.size() == 15);  // 6 per octave over 2.32 octaves
   REQUIRE(sc.analyses.transient);
   CHECK(sc.analyses.transient->delay_s == doctest::Approx(1.5 / 0.3));
   REQUIRE(sc.analyses.harmonic);
@@ -836,7 +838,7 @@ output:
   CHECK(any_warning(sc, "key 'domain.length'"));
   CHECK(sc.mesh.near_void == 0.25);
   CHECK(sc.output_dir == std::filesystem::path("/tmp/voidsign-test/results/gallery"));
-  CHECK(sc.warnings.size() == 3);  // length, ambient skipped, sensors
+  CHECK(sc.warnings.size() == 2);  // length, sensors
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -1453,7 +1455,7 @@ TEST_CASE("transient analysis keys and their mistakes") {
   CHECK(a.record_interval_s == 0.002);
   CHECK(a.receiver_spacing == 2);
   CHECK(a.elements_per_wavelength > 5);
-  CHECK_FALSE(any_warning(sc, "no analysis that this version runs"));
+  CHECK_FALSE(any_warning(sc, "requests no analysis"));
   CHECK_FALSE(any_warning(sc, "nothing loads the model"));
 
   const std::string head = k_head + v + "analyses:\n  transient:\n";
