@@ -8,6 +8,7 @@
 #include <cstdio>
 #include <fstream>
 #include <limits>
+#include <map>
 #include <numbers>
 #include <optional>
 #include <sstream>
@@ -1474,6 +1475,163 @@ AmbientAnalysis parse_ambient(const Map& m, const fs::path& base_dir) {
   return a;
 }
 
+// ---------------------------------------------------------------------------------------------
+// Sensors
+
+solver::Sourced from_scenario(double v) { return {v, solver::SourceStatus::verified, "scenario file"}; }
+
+// The first catalogue entry of a kind: the defaults of an explicit spec.
+solver::SensorSpec catalogue_default(solver::SensorKind k) {
+  for (const auto& e : solver::sensor_catalogue())
+    if (e.kind == k) return e;
+  throw std::logic_error("sensor catalogue has no entry of a kind");
+}
+
+// A seismometer's self-noise from `noise: low | high | {table: f}` over its band, as velocity PSD.
+solver::SourcedPsd parse_self_noise(const Field& f, const fs::path& base_dir, double lo, double hi) {
+  if (f.node.IsMap()) {
+    const Map tm = f.map();
+    tm.allow({"table"});
+    const Field tf = tm.need("table", "a CSV file of f_hz and a PSD column (docs/instruments.md)");
+    fs::path path(tf.text());
+    if (path.is_relative()) path = base_dir / path;
+    std::error_code ec;
+    if (!fs::exists(path, ec)) tf.fail("no such PSD table: " + path.lexically_normal().string());
+    const PsdTable t = read_psd_table(path.lexically_normal());
+    const SourceLoc l = f.loc();
+    check_band_in_table(t, lo, hi, f.ctx->file + ":" + std::to_string(l.line) + ":" + std::to_string(l.column) + ": key '" + f.path + "'");
+    return {solver::convert(t.psd, solver::PsdQuantity::velocity), solver::SourceStatus::verified, "table " + path.filename().string()};
+  }
+  const bool low = f.choice({"low", "high"}, "self-noise model") == "low";
+  if (lo < 1e-5 || hi > 10)
+    f.fail("the standard noise models cover 1e-5 to 10 Hz; this sensor's band reaches " + num(lo) + "-" + num(hi) +
+           " Hz (give a band inside it or a table)");
+  return {solver::peterson_breakpoints_psd(low ? solver::NoiseModel::low : solver::NoiseModel::high, lo, hi,
+                                           solver::PsdQuantity::velocity),
+          solver::SourceStatus::verified, std::string("Peterson (1993) ") + (low ? "NLNM" : "NHNM") + " as self-noise (scenario file)"};
+}
+
+SensorUse parse_sensor(const Field& item, const fs::path& base_dir, std::map<std::string, int>& seen) {
+  SensorUse u;
+  u.loc = item.loc();
+  const std::vector<std::string> names = solver::sensor_names();
+  auto catalogue = [&](const Field& nf) {
+    const std::string n = nf.choice(names, "catalogue sensor (voidsign sensors lists them)");
+    return *solver::find_sensor(n);
+  };
+  std::optional<Map> m;
+  if (item.node.IsScalar()) {
+    u.spec = catalogue(item);
+    u.label = u.spec.name;
+  } else {
+    m = item.map();
+    m->allow({"name", "kind", "label", "precision", "precision-per-km", "pixel", "spacing", "origin", "window", "incidence",
+              "heading", "look", "noise", "band", "component", "bearing"});
+    const auto nf = m->get("name");
+    const auto kf = m->get("kind");
+    if (nf && kf) kf->fail("give either a catalogue 'name' or a 'kind' with its values, not both");
+    if (!nf && !kf) item.fail("a sensor needs a catalogue 'name' or a 'kind' (radar-los, levelling, gnss, tiltmeter, strainmeter, "
+                              "seismometer, geophone)");
+    if (nf) {
+      u.spec = catalogue(*nf);
+      u.label = u.spec.name;
+    } else {
+      const std::string k = kf->choice({"radar-los", "levelling", "gnss", "tiltmeter", "strainmeter", "seismometer", "geophone"},
+                                       "sensor kind");
+      for (const auto kind : {solver::SensorKind::radar_los, solver::SensorKind::levelling, solver::SensorKind::gnss,
+                              solver::SensorKind::tiltmeter, solver::SensorKind::strainmeter, solver::SensorKind::seismometer,
+                              solver::SensorKind::geophone})
+        if (solver::kind_name(kind) == k) u.spec = catalogue_default(kind);
+      u.spec.name = k;
+      u.spec.description = "explicit " + k + " (scenario file)";
+      const bool dynamic = solver::is_dynamic(u.spec);
+      if (!dynamic && !m->has("precision") && !(k == "levelling" && m->has("precision-per-km")))
+        item.fail("an explicit " + k + " needs its one-sigma 'precision' (" + std::string(solver::quantity_unit(u.spec.quantity)) + ")");
+      u.label = k;
+    }
+    if (auto f = m->get("label")) u.label = f->text();
+    const bool dynamic = solver::is_dynamic(u.spec);
+    auto static_only = [&](const Field& f) {
+      if (dynamic) f.fail("'" + f.path.substr(f.path.rfind('.') + 1) + "' applies to static sensors; a " +
+                          std::string(solver::kind_name(u.spec.kind)) + " is described by its self-noise ('noise')");
+    };
+    auto kind_only = [&](const Field& f, std::initializer_list<solver::SensorKind> kinds) {
+      for (auto k : kinds)
+        if (u.spec.kind == k) return;
+      f.fail("'" + f.path.substr(f.path.rfind('.') + 1) + "' does not apply to a " + std::string(solver::kind_name(u.spec.kind)));
+    };
+    if (auto f = m->get("precision")) {
+      static_only(*f);
+      u.spec.sigma = from_scenario(f->positive());
+      u.spec.sigma_per_sqrt_km.reset();
+    }
+    if (auto f = m->get("precision-per-km")) {
+      kind_only(*f, {solver::SensorKind::levelling});
+      if (m->has("precision")) f->fail("give 'precision' (per reading) or 'precision-per-km' (grows with distance), not both");
+      u.spec.sigma_per_sqrt_km = from_scenario(f->positive());
+      u.spec.sigma.reset();
+    }
+    if (auto f = m->get("pixel")) {
+      kind_only(*f, {solver::SensorKind::radar_los});
+      u.spec.footprint_m = from_scenario(f->non_negative());
+    }
+    if (auto f = m->get("spacing")) {
+      kind_only(*f, {solver::SensorKind::levelling, solver::SensorKind::gnss});
+      u.spec.spacing_m = from_scenario(f->positive());
+    }
+    if (auto f = m->get("origin")) {
+      kind_only(*f, {solver::SensorKind::levelling, solver::SensorKind::gnss});
+      u.origin_m = f->number();
+    }
+    if (auto f = m->get("window")) {
+      kind_only(*f, {solver::SensorKind::radar_los});
+      u.spec.window_s = from_scenario(f->positive());
+    }
+    if (auto f = m->get("incidence")) {
+      kind_only(*f, {solver::SensorKind::radar_los});
+      const double v = f->number();
+      if (v < 0 || v >= 90) f->fail("the incidence angle is measured from the vertical and lies in [0, 90) degrees, got " + num(v));
+      u.spec.incidence_deg = from_scenario(v);
+    }
+    if (auto f = m->get("heading")) {
+      kind_only(*f, {solver::SensorKind::radar_los});
+      u.spec.heading_deg = from_scenario(f->number());
+    }
+    if (auto f = m->get("look")) {
+      kind_only(*f, {solver::SensorKind::radar_los});
+      u.spec.look = f->choice({"right", "left"}, "look side") == "left" ? solver::LookSide::left : solver::LookSide::right;
+    }
+    if (auto f = m->get("bearing")) u.profile_bearing_deg = f->number();
+    if (auto f = m->get("component")) {
+      kind_only(*f, {solver::SensorKind::gnss});
+      u.spec.quantity = f->choice({"vertical", "horizontal"}, "component") == "horizontal"
+                            ? solver::MeasuredQuantity::horizontal_displacement
+                            : solver::MeasuredQuantity::vertical_displacement;
+    }
+    if (auto f = m->get("band")) {
+      if (!dynamic) f->fail("'band' applies to seismometers and geophones");
+      const auto items = f->list();
+      if (items.size() != 2) f->fail("expected [lowest, highest] frequency in Hz");
+      const double lo = items[0].positive(), hi = items[1].positive();
+      if (!(hi > lo)) items[1].fail("the band's upper end must be above its lower end");
+      u.spec.band_lo_hz = from_scenario(lo);
+      u.spec.band_hi_hz = from_scenario(hi);
+    }
+    if (auto f = m->get("noise")) {
+      if (!dynamic) f->fail("'noise' (a self-noise spectrum) applies to seismometers and geophones; static sensors take 'precision'");
+      u.spec.self_noise = parse_self_noise(*f, base_dir, u.spec.band_lo_hz->value, u.spec.band_hi_hz->value);
+    }
+  }
+  if ((u.spec.kind == solver::SensorKind::levelling || u.spec.kind == solver::SensorKind::gnss) && !u.spec.spacing_m)
+    item.fail("a " + std::string(solver::kind_name(u.spec.kind)) + " survey needs its benchmark spacing in m: write {" +
+              (m && m->has("kind") ? "kind" : "name") + ": " + (m && m->has("kind") ? std::string(solver::kind_name(u.spec.kind)) : u.spec.name) +
+              ", spacing: 10}");
+  // Repeated labels get a number so that every row of the verdict is named uniquely.
+  const int n = ++seen[u.label];
+  if (n > 1) u.label += " #" + std::to_string(n);
+  return u;
+}
+
 // Elements per S wavelength at the highest frequency f_max in the slowest layer, with the
 // far-field size as the element size (the mesher's largest): quadratic elements need 5, linear 10
 // (docs/scenario-format.md). Below the minimum: a warning on `key`; below half of it: an error.
@@ -1918,10 +2076,11 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
 
   // sensors, output
   if (auto sf = top.get("sensors")) {
-    sf->list();
-    sc.has_sensors = true;
-    warn_at(ctx, sf->key_mark, sf->path,
-            "sensors are read but not evaluated: detectability is computed by a later version");
+    std::map<std::string, int> seen;
+    for (const Field& item : sf->list()) {
+      SensorUse u = parse_sensor(item, sc.file.parent_path(), seen);
+      sc.sensors.push_back(std::move(u));
+    }
   }
   if (auto of = top.get("output")) {
     const Map om = of->map(true);

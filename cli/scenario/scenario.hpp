@@ -11,6 +11,7 @@
 #include <vector>
 
 #include "solver/signals/noise_model.hpp"
+#include "solver/signals/sensor_catalogue.hpp"
 
 namespace voidsign::cli {
 
@@ -159,6 +160,15 @@ struct Analyses {
   std::optional<AmbientAnalysis> ambient;
 };
 
+/// One entry of `sensors`: a catalogue instrument, possibly with overrides, or an explicit spec.
+struct SensorUse {
+  solver::SensorSpec spec;   ///< resolved: every value the verdict needs is set
+  std::string label;         ///< as shown in tables: the catalogue name, or "kind #k" for explicit specs
+  double profile_bearing_deg = 90;  ///< 2D: azimuth of the model's +x, degrees clockwise from north
+  double origin_m = 0;       ///< levelling/GNSS: x (3d: along x at the voids' y) of one benchmark, m
+  SourceLoc loc;
+};
+
 struct Scenario {
   std::filesystem::path file;      ///< absolute path of the scenario file
   std::string sha256;              ///< of the file's bytes
@@ -172,7 +182,7 @@ struct Scenario {
   Loads loads;
   Analyses analyses;
   MeshControls mesh;
-  bool has_sensors = false;        ///< a sensors block was given (evaluated by a later version)
+  std::vector<SensorUse> sensors;
   std::filesystem::path output_dir;  ///< resolved against the file's folder; may be empty
   std::vector<std::string> warnings;
 };

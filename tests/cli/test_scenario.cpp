@@ -277,7 +277,7 @@ output: {dir: out/gallery}
   CHECK(sc.mesh.size == 4);
   CHECK(sc.mesh.near_void == 0.2);
   CHECK(sc.mesh.surface == 1);
-  CHECK_FALSE(sc.has_sensors);
+  CHECK(sc.sensors.empty());
   CHECK(sc.output_dir == std::filesystem::path("/tmp/voidsign-test/out/gallery"));
 }
 
@@ -722,7 +722,7 @@ TEST_CASE("analyses, sensors and mesh warnings") {
   const Scenario sc = parse_scenario(
       k_head + v +
           "analyses:\n  static: {}\n  modal: {modes: 10}\n  ambient:\n    noise: high\n"
-          "sensors:\n  - radar-typical\n  - {kind: levelling, precision: 0.5e-3}\n"
+          "sensors:\n  - radar-typical\n  - {kind: levelling, precision: 0.5e-3, spacing: 10}\n"
           "mesh: {size: 1, near-void: 2}\n",
       k_file);
   CHECK(sc.analyses.static_);
@@ -730,8 +730,10 @@ TEST_CASE("analyses, sensors and mesh warnings") {
   CHECK(sc.analyses.ambient->noise == AmbientAnalysis::Noise::high);
   REQUIRE(sc.analyses.modal);
   CHECK(sc.analyses.modal->modes == 10);
-  CHECK(sc.has_sensors);
-  CHECK(any_warning(sc, "detectability is computed by a later version"));
+  REQUIRE(sc.sensors.size() == 2);
+  CHECK(sc.sensors[0].label == "radar-typical");
+  CHECK(sc.sensors[1].spec.sigma->value == 0.5e-3);
+  CHECK(sc.sensors[1].spec.spacing_m->value == 10);
   CHECK(any_warning(sc, "near-void 2 m is coarser than the far-field size 1 m"));
   CHECK(any_warning(sc, "coarse for this void"));
   const Scenario modal_only = parse_scenario(k_head + v + "analyses: {modal: {}}\n", k_file);
@@ -833,12 +835,12 @@ output:
   CHECK(sc.analyses.transient->delay_s == doctest::Approx(1.5 / 0.3));
   REQUIRE(sc.analyses.harmonic);
   CHECK(sc.analyses.harmonic->frequencies_hz.size() == 60);
-  CHECK(sc.has_sensors);
+  CHECK(sc.sensors.size() == 3);
   CHECK(sc.domain.length == 300);
   CHECK(any_warning(sc, "key 'domain.length'"));
   CHECK(sc.mesh.near_void == 0.25);
   CHECK(sc.output_dir == std::filesystem::path("/tmp/voidsign-test/results/gallery"));
-  CHECK(sc.warnings.size() == 2);  // length, sensors
+  CHECK(sc.warnings.size() == 1);  // length
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -1473,4 +1475,40 @@ TEST_CASE("transient analysis keys and their mistakes") {
   // The wavelet's band must be resolved by the mesh: 2.5 x 60 Hz in chalk with 4 m elements is not.
   expect_error(head + "    duration: 1.0\n    source: {x: 0, depth: 0, peak-frequency: 60, force: 1}\n", "60",
                "analyses.transient.source.peak-frequency", "element(s) of size 4 m per wavelength");
+}
+
+TEST_CASE("sensors: catalogue names, overrides, explicit specs and their mistakes") {
+  const std::string v = "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\n";
+  const Scenario sc = parse_scenario(k_head + v +
+                                         "sensors:\n  - radar-typical\n"
+                                         "  - {kind: radar-los, precision: 1.0e-3, pixel: 20, incidence: 39, heading: -12, window: 3}\n"
+                                         "  - {name: levelling, spacing: 10, origin: -40}\n"
+                                         "  - {kind: tiltmeter, precision: 1.0e-8}\n"
+                                         "  - {kind: seismometer, noise: low, band: [0.1, 5]}\n"
+                                         "  - radar-typical\n",
+                                     k_file);
+  REQUIRE(sc.sensors.size() == 6);
+  CHECK(sc.sensors[1].spec.kind == voidsign::solver::SensorKind::radar_los);
+  CHECK(sc.sensors[1].spec.sigma->value == 1e-3);
+  CHECK(sc.sensors[1].spec.footprint_m->value == 20);
+  CHECK(sc.sensors[1].spec.incidence_deg->value == 39);
+  CHECK(sc.sensors[1].spec.window_s->value == 3);
+  CHECK(sc.sensors[2].label == "levelling");
+  CHECK(sc.sensors[2].spec.sigma_per_sqrt_km);  // the catalogue's b, kept
+  CHECK(sc.sensors[2].origin_m == -40);
+  CHECK(sc.sensors[3].spec.sigma->value == 1e-8);
+  REQUIRE(sc.sensors[4].spec.self_noise);
+  CHECK(sc.sensors[4].spec.self_noise->psd.quantity == voidsign::solver::PsdQuantity::velocity);
+  CHECK(sc.sensors[4].spec.self_noise->psd.f_hz.front() == doctest::Approx(0.1));
+  CHECK(sc.sensors[5].label == "radar-typical #2");
+
+  const std::string head = k_head + v + "sensors:\n";
+  expect_error(head + "  - radar-typicl\n", "radar-typicl", "sensors.0", "did you mean 'radar-typical'?");
+  expect_error(head + "  - levelling\n", "levelling", "sensors.0", "benchmark spacing");
+  expect_error(head + "  - {kind: tiltmeter}\n", "{kind", "sensors.0", "needs its one-sigma 'precision'");
+  expect_error(head + "  - {kind: seismometer, precision: 1.0e-9}\n", "1.0e-9", "sensors.0.precision", "applies to static sensors");
+  expect_error(head + "  - {kind: radar-los, precision: 1.0e-3, incidence: 95}\n", "95", "sensors.0.incidence", "[0, 90)");
+  expect_error(head + "  - {name: gnss, kind: gnss, spacing: 5}\n", "gnss, spacing", "sensors.0.kind", "not both");
+  expect_error(head + "  - {kind: tiltmeter, precision: 1.0e-8, pixel: 3}\n", "3}", "sensors.0.pixel", "does not apply to a tiltmeter");
+  expect_error(head + "  - {kind: seismometer, noise: low, band: [0.1, 40]}\n", "low", "sensors.0.noise", "cover 1e-5 to 10 Hz");
 }
