@@ -1,5 +1,5 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
-// The voidsign program: subcommands run, check, verify, materials.
+// The voidsign program: subcommands run, check, verify, materials, sensors.
 #include <CLI/CLI.hpp>
 #include <cstdio>
 #include <exception>
@@ -24,6 +24,11 @@ int main(int argc, char** argv) {
   run_cmd->add_option("FILE", run.scenario, "Scenario file (YAML, format 1)")->required();
   run_cmd->add_option("--out", out, "Output folder (default: output.dir of the scenario, else results/<name>)");
   run_cmd->add_flag("--force", run.force, "Replace an existing, non-empty output folder");
+  run_cmd->add_option("--snr", run.snr, "Signal-to-noise ratio at and above which a sensor counts as detecting the void")
+      ->default_val(3.0)
+      ->check(CLI::PositiveNumber);
+  run_cmd->add_flag("--find-threshold", run.find_threshold,
+                    "Also find, per sensor, the smallest radius of void 0 at its depth that the sensor would detect (re-runs the model)");
   run_cmd->footer(std::string("CAUTION: ") + caution_text);
 
   std::filesystem::path check_file;
@@ -36,6 +41,7 @@ int main(int argc, char** argv) {
   verify_cmd->add_option("--case", verify_only, "Only cases whose name contains this text");
 
   auto* materials_cmd = app.add_subcommand("materials", "List the built-in material catalogue");
+  auto* sensors_cmd = app.add_subcommand("sensors", "List the built-in sensor catalogue with the source of each value");
 
   try {
     app.parse(argc, argv);
@@ -52,6 +58,7 @@ int main(int argc, char** argv) {
     if (verify_cmd->parsed())
       return verify_command(verify_json.empty() ? std::nullopt : std::optional<std::filesystem::path>(verify_json), verify_only);
     if (materials_cmd->parsed()) return materials_command();
+    if (sensors_cmd->parsed()) return sensors_command();
   } catch (const InputError& e) {
     std::fprintf(stderr, "error: %s\n", e.what());
     return exit_bad_input;

@@ -11,6 +11,8 @@ struct RunOptions {
   std::filesystem::path scenario;
   std::optional<std::filesystem::path> out;  ///< overrides output.dir
   bool force = false;                        ///< replace an existing, non-empty output folder
+  double snr = 3.0;                          ///< SNR at and above which a sensor detects the void
+  bool find_threshold = false;               ///< also search the smallest detectable void radius per sensor
 };
 
 /// `voidsign run FILE`: solve, write DIR/summary.json, DIR/mesh.vtu, DIR/static/*, print the peaks.
@@ -21,6 +23,9 @@ int check_command(const std::filesystem::path& scenario);
 
 /// `voidsign materials`: the built-in catalogue.
 int materials_command();
+
+/// `voidsign sensors`: the built-in sensor catalogue with each value's source.
+int sensors_command();
 
 /// `voidsign verify`: every verification case, one row each; `json` also writes them there.
 /// `only` restricts to case names containing that text.

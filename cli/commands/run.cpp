@@ -14,6 +14,7 @@
 #include "cli/commands/model_setup.hpp"
 #include "cli/commands/static_run.hpp"
 #include "cli/commands/transient_run.hpp"
+#include "cli/commands/verdict.hpp"
 #include "cli/errors.hpp"
 #include "cli/output/output_dir.hpp"
 #include "cli/scenario/scenario.hpp"
@@ -188,6 +189,20 @@ int run_command(const RunOptions& opt) {
   }
   for (const auto& w : run.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
 
+  Detectability detect;
+  detect.threshold = opt.snr;
+  if (s.analyses.static_) add_static_verdicts(s, run, detect);
+  if (ambient) add_ambient_verdicts(s, *ambient, *run.mesh, detect);
+  if (!s.sensors.empty()) {
+    for (const char* a : {"modal", "harmonic", "transient"}) {
+      const bool ran = (std::string(a) == "modal" && modal) || (std::string(a) == "harmonic" && harmonic) ||
+                       (std::string(a) == "transient" && transient);
+      if (ran)
+        detect.skipped.push_back({a, "every sensor", std::string("verdicts are drawn from the static and ambient analyses; the ") + a +
+                                                         " analysis reports the deterministic response to its own source (its summary block)"});
+    }
+  }
+
   // Everything goes to a staging folder that replaces DIR only when complete.
   progress.step("writing");
   const auto t_write = std::chrono::steady_clock::now();
@@ -223,7 +238,7 @@ int run_command(const RunOptions& opt) {
     if (harmonic) j["harmonic"] = harmonic_summary(*harmonic, s, *run.mesh);
     if (transient) j["transient"] = transient_summary(*transient, s, *run.mesh);
     if (ambient) j["ambient"] = ambient_summary(*ambient, s, *run.mesh);
-    j["detectability"] = nlohmann::json::array();
+    j["detectability"] = detectability_json(detect);
     std::vector<std::string> warnings = s.warnings;
     warnings.insert(warnings.end(), run.warnings.begin(), run.warnings.end());
     j["warnings"] = warnings;
@@ -260,6 +275,7 @@ int run_command(const RunOptions& opt) {
   if (harmonic) print_harmonic(*harmonic, *run.mesh, dir);
   if (transient) print_transient(*transient, *run.mesh, dir);
   if (ambient) print_ambient(*ambient, *run.mesh, dir);
+  print_detectability(detect);
   if (!s.analyses.static_) std::printf("Caution: %s\n", caution_text);
   return exit_ok;
 }

@@ -1,0 +1,341 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+#include "cli/commands/verdict.hpp"
+
+#include "cli/commands/model_setup.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <limits>
+#include <map>
+#include <numbers>
+#include <sstream>
+
+#include "solver/signals/instrument.hpp"
+#include "solver/signals/noise_model.hpp"
+#include "solver/signals/sensor_catalogue.hpp"
+
+namespace voidsign::cli {
+
+namespace {
+
+using solver::MeasuredQuantity;
+using solver::SensorKind;
+
+std::string fmt(double v, int prec = 3) {
+  std::ostringstream os;
+  os.precision(prec);
+  os << v;
+  return os.str();
+}
+
+void finish(Verdict& v, double threshold) {
+  v.snr = v.noise > 0 ? v.signal / v.noise : 0;
+  v.detectable = v.snr >= threshold;
+  v.factor = v.detectable ? v.snr / threshold : (v.snr > 0 ? threshold / v.snr : std::numeric_limits<double>::infinity());
+}
+
+Verdict start(const std::string& analysis, const SensorUse& u) {
+  Verdict v;
+  v.analysis = analysis;
+  v.sensor = u.label;
+  v.quantity = std::string(solver::quantity_name(u.spec.quantity));
+  v.unit = std::string(solver::quantity_unit(u.spec.quantity));
+  return v;
+}
+
+solver::RadarGeometry geometry_of(const SensorUse& u) { return solver::radar_geometry(u.spec); }
+
+std::string radar_how(const SensorUse& u) {
+  const auto g = geometry_of(u);
+  const double p = u.spec.footprint_m ? u.spec.footprint_m->value : 0;
+  return "line of sight, incidence " + fmt(g.incidence_deg) + " deg, heading " + fmt(g.heading_deg) + " deg, " +
+         (g.look == solver::LookSide::right ? "right" : "left") + "-looking" +
+         (p > 0 ? ", averaged over " + fmt(p) + " m pixels" : ", point value");
+}
+
+// The static profile (2D) or a line through the voids along x (3D) the surveys follow.
+struct Profile {
+  std::vector<double> x, dux, duz;  // duz relative to the far field
+  double y = 0;
+};
+
+// Linear interpolation inside the surface triangles (corner nodes) of a 3D map.
+std::optional<std::array<double, 2>> sample_map(const solver::SurfaceMap& map, double x, double y) {
+  const std::size_t npt = static_cast<std::size_t>(map.nodes_per_triangle);
+  for (std::size_t t = 0; t + npt <= map.triangles.size(); t += npt) {
+    const auto& a = map.points[static_cast<std::size_t>(map.triangles[t])];
+    const auto& b = map.points[static_cast<std::size_t>(map.triangles[t + 1])];
+    const auto& c = map.points[static_cast<std::size_t>(map.triangles[t + 2])];
+    const double det = (b.x - a.x) * (c.y - a.y) - (c.x - a.x) * (b.y - a.y);
+    if (det == 0) continue;
+    const double l1 = ((x - a.x) * (c.y - a.y) - (c.x - a.x) * (y - a.y)) / det;
+    const double l2 = ((b.x - a.x) * (y - a.y) - (x - a.x) * (b.y - a.y)) / det;
+    const double l0 = 1 - l1 - l2;
+    if (l0 < -1e-9 || l1 < -1e-9 || l2 < -1e-9) continue;
+    return std::array<double, 2>{l0 * a.du[0] + l1 * b.du[0] + l2 * c.du[0], l0 * a.duz_rel + l1 * b.duz_rel + l2 * c.duz_rel};
+  }
+  return std::nullopt;
+}
+
+Profile survey_line(const Scenario& s, const StaticRun& run) {
+  Profile p;
+  if (run.mesh->dim() == 2) {
+    for (const auto& r : run.profile) {
+      p.x.push_back(r.x);
+      p.dux.push_back(r.dux);
+      p.duz.push_back(r.duz_rel);
+    }
+    return p;
+  }
+  p.y = y_centre_of(s);
+  const double step = s.mesh.surface / 2;
+  for (double x = run.mesh->x_min; x <= run.mesh->x_max + 1e-9; x += step)
+    if (auto v = sample_map(run.map, std::min(x, run.mesh->x_max), p.y)) {
+      p.x.push_back(std::min(x, run.mesh->x_max));
+      p.dux.push_back((*v)[0]);
+      p.duz.push_back((*v)[1]);
+    }
+  return p;
+}
+
+// Radar in 3D: the LOS anomaly averaged over square pixels tiling the surface (aligned with
+// x = y = 0), each surface point weighted by its share of the surface area; the point values
+// when the pixel is 0.
+Verdict radar_3d(const SensorUse& u, const StaticRun& run, Verdict v) {
+  const auto g = geometry_of(u);
+  const auto& pts = run.map.points;
+  std::vector<double> los(pts.size()), area(pts.size(), 0.0);
+  for (std::size_t i = 0; i < pts.size(); ++i)
+    los[i] = solver::los_displacement(g, {pts[i].du[0], pts[i].du[1], pts[i].duz_rel});
+  const std::size_t npt = static_cast<std::size_t>(run.map.nodes_per_triangle);
+  for (std::size_t t = 0; t + npt <= run.map.triangles.size(); t += npt) {
+    const auto& a = pts[static_cast<std::size_t>(run.map.triangles[t])];
+    const auto& b = pts[static_cast<std::size_t>(run.map.triangles[t + 1])];
+    const auto& c = pts[static_cast<std::size_t>(run.map.triangles[t + 2])];
+    const double at = 0.5 * std::abs((b.x - a.x) * (c.y - a.y) - (c.x - a.x) * (b.y - a.y));
+    for (std::size_t k = 0; k < npt; ++k) area[static_cast<std::size_t>(run.map.triangles[t + k])] += at / static_cast<double>(npt);
+  }
+  const double p = u.spec.footprint_m ? u.spec.footprint_m->value : 0;
+  if (p <= 0) {
+    for (std::size_t i = 0; i < pts.size(); ++i)
+      if (std::abs(los[i]) > v.signal) {
+        v.signal = std::abs(los[i]);
+        v.x = pts[i].x;
+        v.y = pts[i].y;
+      }
+    return v;
+  }
+  std::map<std::pair<long, long>, std::array<double, 2>> cells;  // (Σ a·los, Σ a)
+  for (std::size_t i = 0; i < pts.size(); ++i) {
+    auto& c = cells[{std::lround(pts[i].x / p), std::lround(pts[i].y / p)}];
+    c[0] += area[i] * los[i];
+    c[1] += area[i];
+  }
+  for (const auto& [key, c] : cells)
+    if (c[1] > 0 && std::abs(c[0] / c[1]) > v.signal) {
+      v.signal = std::abs(c[0] / c[1]);
+      v.x = static_cast<double>(key.first) * p;
+      v.y = static_cast<double>(key.second) * p;
+    }
+  return v;
+}
+
+Verdict radar_2d(const SensorUse& u, const Profile& prof, Verdict v) {
+  const auto g = geometry_of(u);
+  std::vector<double> los(prof.x.size());
+  for (std::size_t i = 0; i < los.size(); ++i) los[i] = solver::los_displacement_profile(g, prof.dux[i], prof.duz[i], u.profile_bearing_deg);
+  const double p = u.spec.footprint_m ? u.spec.footprint_m->value : 0;
+  const std::vector<double> seen = p > 0 ? solver::pixel_average(prof.x, los, p) : los;
+  for (std::size_t i = 0; i < seen.size(); ++i)
+    if (std::abs(seen[i]) > v.signal) {
+      v.signal = std::abs(seen[i]);
+      v.x = prof.x[i];
+    }
+  return v;
+}
+
+}  // namespace
+
+void add_static_verdicts(const Scenario& s, const StaticRun& run, Detectability& d) {
+  const bool three_d = run.mesh->dim() == 3;
+  const Profile prof = survey_line(s, run);
+  for (const SensorUse& u : s.sensors) {
+    Verdict v = start("static", u);
+    switch (u.spec.kind) {
+      case SensorKind::radar_los:
+        v = three_d ? radar_3d(u, run, v) : radar_2d(u, prof, v);
+        v.noise = solver::static_sigma(u.spec);
+        v.how = radar_how(u) + "; the whole static change between two acquisitions";
+        break;
+      case SensorKind::levelling:
+      case SensorKind::gnss: {
+        const bool horizontal = u.spec.quantity == MeasuredQuantity::horizontal_displacement;
+        if (prof.x.size() < 2) {
+          d.skipped.push_back({"static", u.label, "no survey line on the surface"});
+          continue;
+        }
+        const auto b = solver::sample_benchmarks(prof.x, horizontal ? prof.dux : prof.duz, u.spec.spacing_m->value, u.origin_m);
+        v.signal = std::abs(b.peak);
+        v.x = b.x_peak_m;
+        v.y = prof.y;
+        v.noise = solver::static_sigma(u.spec, b.distance_to_reference_m);
+        v.how = std::string(horizontal ? "horizontal" : "vertical") + " displacement at benchmarks every " +
+                fmt(u.spec.spacing_m->value) + " m along x" + (three_d ? " (at y = " + fmt(prof.y) + " m)" : "") +
+                ", relative to the datum benchmark at x = " + fmt(b.reference_x_m) + " m";
+        if (u.spec.sigma_per_sqrt_km) v.how += "; sigma grows as b sqrt(distance / 1 km)";
+        break;
+      }
+      case SensorKind::tiltmeter:
+        v.signal = run.anomaly.tilt_absmax;
+        v.x = run.anomaly.x_tilt_absmax;
+        v.y = run.anomaly.y_tilt_absmax;
+        v.noise = solver::static_sigma(u.spec);
+        v.how = "placed where the anomaly's tilt is largest";
+        break;
+      case SensorKind::strainmeter:
+        v.signal = run.anomaly.strain_absmax;
+        v.x = run.anomaly.x_strain_absmax;
+        v.y = run.anomaly.y_strain_absmax;
+        v.noise = solver::static_sigma(u.spec);
+        v.how = "placed where the anomaly's horizontal strain is largest";
+        break;
+      case SensorKind::seismometer:
+      case SensorKind::geophone:
+        d.skipped.push_back({"static", u.label, "records ground velocity; a static change has none"});
+        continue;
+    }
+    finish(v, d.threshold);
+    d.rows.push_back(v);
+  }
+}
+
+void add_ambient_verdicts(const Scenario& s, const AmbientRun& run, const mesh::Mesh& m, Detectability& d) {
+  const std::size_t dd = static_cast<std::size_t>(run.d), nq = run.points.size(), nf = run.frequencies_hz.size();
+  const auto& f = run.frequencies_hz;
+  for (const AmbientWavefield& w : run.fields) {
+    const std::string analysis = w.name == "body-waves" ? "ambient, body waves" : "ambient, surface waves";
+    for (const SensorUse& u : s.sensors) {
+      Verdict v = start(analysis, u);
+      std::vector<double> g_anom(nf), g_ref(nf);
+      double lo = f.front(), hi = f.back();
+      auto best_over_points = [&](const auto& psd_of) {
+        // psd_of(q, k, anomaly?) → PSD at point q, frequency k
+        double best = -1, ref_there = 0;
+        for (std::size_t q = 0; q < nq; ++q) {
+          for (std::size_t k = 0; k < nf; ++k) {
+            g_anom[k] = psd_of(q, k, true);
+            g_ref[k] = psd_of(q, k, false);
+          }
+          const double a = std::sqrt(std::max(0.0, solver::integrate_log(f, g_anom, lo, hi)));
+          if (a > best) {
+            best = a;
+            ref_there = std::sqrt(std::max(0.0, solver::integrate_log(f, g_ref, lo, hi)));
+            const auto& x = m.nodes[static_cast<std::size_t>(run.points[q])];
+            v.x = x[0];
+            v.y = x[1];
+          }
+        }
+        v.signal = best;
+        v.ambient = ref_there;
+        v.ambient_ratio = ref_there > 0 ? best / ref_there : 0.0;
+      };
+      if (u.spec.kind == SensorKind::seismometer || u.spec.kind == SensorKind::geophone) {
+        lo = std::max(lo, u.spec.band_lo_hz->value);
+        hi = std::min(hi, u.spec.band_hi_hz->value);
+        if (!(hi > lo)) {
+          d.skipped.push_back({analysis, u.label, "its band (" + fmt(u.spec.band_lo_hz->value) + "-" + fmt(u.spec.band_hi_hz->value) +
+                                                      " Hz) does not overlap the analysis band"});
+          continue;
+        }
+        const std::size_t z = dd - 1;
+        best_over_points([&](std::size_t q, std::size_t k, bool anomaly) {
+          const double w2 = std::pow(2 * std::numbers::pi * f[k], 2);
+          return w2 * (anomaly ? w.psd.anomaly[k][q * dd + z] : w.psd.reference[k][q * dd + z]);
+        });
+        v.instrument_noise = solver::band_rms(u.spec.self_noise->psd, lo, hi);
+        v.how = "vertical velocity RMS over " + fmt(lo) + "-" + fmt(hi) + " Hz at the best surface point; noise: the ambient motion "
+                "there (without voids) and the sensor's self-noise over the same band, in quadrature";
+      } else if (u.spec.kind == SensorKind::radar_los) {
+        const auto g = geometry_of(u);
+        const auto l = solver::los_unit_vector(g);
+        const double window = u.spec.window_s ? u.spec.window_s->value : 0;
+        // LOS of each case's complex response (2D: the profile along the bearing), window gain,
+        // incoherent sum over the cases.
+        const double br = u.profile_bearing_deg * std::numbers::pi / 180;
+        const double lx = dd == 3 ? l.east : l.east * std::sin(br) + l.north * std::cos(br);
+        const double ly = dd == 3 ? l.north : 0.0;
+        best_over_points([&](std::size_t q, std::size_t k, bool anomaly) {
+          double psd = 0;
+          for (std::size_t c = 0; c < w.weights.size(); ++c) {
+            const auto& hv = w.voided[c][k];
+            const auto& hr = w.reference[c][k];
+            auto los_of = [&](const std::vector<std::complex<double>>& h) {
+              return dd == 3 ? lx * h[q * dd] + ly * h[q * dd + 1] + l.up * h[q * dd + 2] : lx * h[q * dd] + l.up * h[q * dd + 1];
+            };
+            const std::complex<double> val = anomaly ? los_of(hv) - los_of(hr) : los_of(hr);
+            psd += w.weights[c][k] * std::norm(val);
+          }
+          const double gain = window > 0 ? solver::window_gain(f[k], window) : 1.0;
+          return gain * gain * psd;
+        });
+        v.instrument_noise = solver::static_sigma(u.spec);
+        v.how = radar_how(u) + " (point value, an upper bound), RMS over " + fmt(lo) + "-" + fmt(hi) + " Hz after averaging over its " +
+                fmt(window) + " s acquisition window (|sinc(fW)|); noise: its precision and the ambient motion, in quadrature";
+      } else {
+        d.skipped.push_back({analysis, u.label, "a static survey reading averages over hours to days, over which ambient motion averages "
+                                                "to zero"});
+        continue;
+      }
+      // The anomaly rides on the ambient motion it is part of: in one record it has to stand out
+      // against that motion as well as against the instrument (docs/detectability.md).
+      v.noise = std::hypot(v.instrument_noise, v.ambient);
+      v.snr_instrument = v.instrument_noise > 0 ? v.signal / v.instrument_noise : 0.0;
+      finish(v, d.threshold);
+      d.rows.push_back(v);
+    }
+  }
+}
+
+nlohmann::json detectability_json(const Detectability& d) {
+  nlohmann::json a = nlohmann::json::array();
+  for (const Verdict& v : d.rows) {
+    nlohmann::json j = {{"analysis", v.analysis}, {"sensor", v.sensor},   {"quantity", v.quantity}, {"unit", v.unit},
+                        {"signal", v.signal},     {"noise", v.noise},     {"snr", v.snr},           {"detectable", v.detectable},
+                        {"threshold", d.threshold}, {"x", v.x},           {"how", v.how}};
+    j[v.detectable ? "margin" : "misses_by"] = std::isfinite(v.factor) ? nlohmann::json(v.factor) : nlohmann::json(nullptr);
+    if (v.ambient_ratio) {
+      j["relative_to_ambient"] = *v.ambient_ratio;
+      j["ambient"] = v.ambient;
+      j["instrument_noise"] = v.instrument_noise;
+      j["snr_instrument_only"] = v.snr_instrument;
+    }
+    a.push_back(j);
+  }
+  for (const NoVerdict& n : d.skipped)
+    a.push_back({{"analysis", n.analysis}, {"sensor", n.sensor}, {"detectable", nullptr}, {"reason", n.reason}});
+  return a;
+}
+
+void print_detectability(const Detectability& d) {
+  if (d.rows.empty() && d.skipped.empty()) return;
+  std::printf("\nDetectability (signal = the void's anomaly as the sensor records it; detectable when SNR >= %g):\n", d.threshold);
+  std::printf("  %-24s %-24s %-22s %13s %13s %9s  %s\n", "analysis", "sensor", "quantity", "signal", "noise", "SNR", "verdict");
+  for (const Verdict& v : d.rows) {
+    char verdict[64];
+    if (v.detectable)
+      std::snprintf(verdict, sizeof verdict, "DETECTABLE (x%.3g margin)", v.factor);
+    else if (std::isfinite(v.factor))
+      std::snprintf(verdict, sizeof verdict, "not detectable (misses x%.3g)", v.factor);
+    else
+      std::snprintf(verdict, sizeof verdict, "not detectable (no signal)");
+    char sig[48], noi[48];
+    std::snprintf(sig, sizeof sig, "%.3g %s", v.signal, v.unit.c_str());
+    std::snprintf(noi, sizeof noi, "%.3g %s", v.noise, v.unit.c_str());
+    std::printf("  %-24s %-24s %-22s %13s %13s %9.3g  %s\n", v.analysis.c_str(), v.sensor.c_str(), v.quantity.c_str(), sig, noi, v.snr,
+                verdict);
+  }
+  for (const NoVerdict& n : d.skipped) std::printf("  %-24s %-24s no verdict: %s\n", n.analysis.c_str(), n.sensor.c_str(), n.reason.c_str());
+}
+
+}  // namespace voidsign::cli
