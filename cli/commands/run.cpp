@@ -14,6 +14,7 @@
 #include "cli/commands/model_setup.hpp"
 #include "cli/commands/static_run.hpp"
 #include "cli/commands/transient_run.hpp"
+#include "cli/commands/threshold.hpp"
 #include "cli/commands/verdict.hpp"
 #include "cli/errors.hpp"
 #include "cli/output/output_dir.hpp"
@@ -156,6 +157,8 @@ int run_command(const RunOptions& opt) {
   if (!s.analyses.static_ && !s.analyses.modal && !s.analyses.harmonic && !s.analyses.transient && !s.analyses.ambient)
     throw InputError(s.file.string() + ": key 'analyses': no analysis was requested (add 'static: {}', 'modal: {}', "
                                        "'harmonic: ...', 'transient: ...' or 'ambient: ...')");
+  if (opt.find_threshold && (s.sensors.empty() || s.voids.empty()))
+    throw InputError(s.file.string() + ": --find-threshold needs at least one void and a 'sensors' list in the scenario");
   for (const auto& w : s.warnings) std::fprintf(stderr, "warning: %s\n", w.c_str());
   check_budget(s, estimate_run(s));
 
@@ -203,6 +206,9 @@ int run_command(const RunOptions& opt) {
     }
   }
 
+  std::vector<ThresholdResult> thresholds;
+  if (opt.find_threshold) thresholds = find_thresholds(s, detect, &progress);
+
   // Everything goes to a staging folder that replaces DIR only when complete.
   progress.step("writing");
   const auto t_write = std::chrono::steady_clock::now();
@@ -239,6 +245,7 @@ int run_command(const RunOptions& opt) {
     if (transient) j["transient"] = transient_summary(*transient, s, *run.mesh);
     if (ambient) j["ambient"] = ambient_summary(*ambient, s, *run.mesh);
     j["detectability"] = detectability_json(detect);
+    if (opt.find_threshold) j["threshold_search"] = thresholds_json(thresholds);
     std::vector<std::string> warnings = s.warnings;
     warnings.insert(warnings.end(), run.warnings.begin(), run.warnings.end());
     j["warnings"] = warnings;
@@ -276,6 +283,7 @@ int run_command(const RunOptions& opt) {
   if (transient) print_transient(*transient, *run.mesh, dir);
   if (ambient) print_ambient(*ambient, *run.mesh, dir);
   print_detectability(detect);
+  print_thresholds(thresholds, detect.threshold);
   if (!s.analyses.static_) std::printf("Caution: %s\n", caution_text);
   return exit_ok;
 }
