@@ -16,6 +16,7 @@
 #include "cli/commands/transient_run.hpp"
 #include "cli/commands/threshold.hpp"
 #include "cli/commands/verdict.hpp"
+#include "cli/report/run_report.hpp"
 #include "cli/errors.hpp"
 #include "cli/output/output_dir.hpp"
 #include "cli/scenario/scenario.hpp"
@@ -264,6 +265,19 @@ int run_command(const RunOptions& opt) {
                       {"write", write_s},
                       {"total", std::chrono::duration<double>(std::chrono::steady_clock::now() - t_start).count()}};
     write_text_atomic(staging / "summary.json", j.dump(2) + "\n");
+    ReportInputs rep;
+    rep.scenario = &s;
+    rep.base = &run;
+    rep.static_ran = s.analyses.static_;
+    rep.modal = modal ? &*modal : nullptr;
+    rep.harmonic = harmonic ? &*harmonic : nullptr;
+    rep.transient = transient ? &*transient : nullptr;
+    rep.ambient = ambient ? &*ambient : nullptr;
+    rep.detectability = &detect;
+    rep.thresholds = &thresholds;
+    rep.warnings = warnings;
+    rep.date_utc = j["date_utc"];
+    write_report(rep, staging);
     if (fs::exists(dir)) fs::remove_all(dir);
     fs::create_directories(dir.parent_path());
     fs::rename(staging, dir);
