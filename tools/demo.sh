@@ -5,4 +5,4 @@ set -euo pipefail
 here="$(cd "$(dirname "$0")/.." && pwd)"
 "$here/tools/deps.sh"
 "$here/tools/build.sh"
-"$here/build/cli/voidsign" run "$here/scenarios/chalk-gallery.yaml" --force
+"$here/build/cli/voidsign" run "$here/scenarios/shallow-working-village.yaml" --force

@@ -335,7 +335,17 @@ void print_detectability(const Detectability& d) {
     std::printf("  %-24s %-24s %-22s %13s %13s %9.3g  %s\n", v.analysis.c_str(), v.sensor.c_str(), v.quantity.c_str(), sig, noi, v.snr,
                 verdict);
   }
-  for (const NoVerdict& n : d.skipped) std::printf("  %-24s %-24s no verdict: %s\n", n.analysis.c_str(), n.sensor.c_str(), n.reason.c_str());
+  // Pairs without a verdict, one line per analysis and reason.
+  std::vector<std::pair<std::string, std::string>> keys;
+  std::map<std::pair<std::string, std::string>, std::string> sensors;
+  for (const NoVerdict& n : d.skipped) {
+    const auto key = std::make_pair(n.analysis, n.reason);
+    if (!sensors.count(key)) keys.push_back(key);
+    auto& list = sensors[key];
+    list += (list.empty() ? "" : ", ") + n.sensor;
+  }
+  for (const auto& key : keys)
+    std::printf("  %-24s no verdict for %s: %s\n", key.first.c_str(), sensors[key].c_str(), key.second.c_str());
 }
 
 }  // namespace voidsign::cli

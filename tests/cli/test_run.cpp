@@ -9,6 +9,7 @@
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
+#include <map>
 #include <nlohmann/json.hpp>
 #include <sstream>
 #include <string>
@@ -155,7 +156,8 @@ TEST_CASE("a mesh too large for the machine is refused before allocating") {
 }
 
 TEST_CASE("the demo scenarios run") {
-  for (const std::string name : {"chalk-gallery.yaml", "karst-cave.yaml", "gallery-under-road-3d.yaml", "cellar-under-orchard-dynamic.yaml"}) {
+  for (const std::string name : {"chalk-gallery.yaml", "karst-cave.yaml", "gallery-under-road-3d.yaml", "cellar-under-orchard-dynamic.yaml",
+                                 "shallow-working-village.yaml", "deep-chamber-upland.yaml"}) {
     const fs::path d = temp_dir("demo");
     Cmd c = run(std::string("run ") + VOIDSIGN_SOURCE_DIR + "/scenarios/" + name + " --out " + (d / "o").string());
     INFO(c.out);
@@ -169,6 +171,22 @@ TEST_CASE("the demo scenarios run") {
       CHECK(j["mesh"]["dofs"].get<long>() == 3 * j["mesh"]["nodes"].get<long>());
       CHECK(j["static"]["residual"].get<double>() < 1e-8);
       CHECK(j["static"]["anomaly"]["uz_min"].get<double>() < 0);
+    }
+    // The two verdict demos: the shallow working is seen by levelling and not by one radar
+    // pair; the deep passage by nothing.
+    if (name.find("shallow") != std::string::npos || name.find("deep") != std::string::npos) {
+      const auto j = nlohmann::json::parse(read(d / "o/summary.json"));
+      CHECK(fs::exists(d / "o/report.html"));
+      std::map<std::string, bool> seen;
+      for (const auto& r : j["detectability"])
+        if (r["analysis"] == "static" && r["detectable"].is_boolean()) seen[r["sensor"]] = r["detectable"].get<bool>();
+      if (name.find("shallow") != std::string::npos) {
+        CHECK(seen.at("levelling"));
+        CHECK_FALSE(seen.at("radar-typical"));
+      } else {
+        for (const auto& r : j["detectability"])
+          if (r["detectable"].is_boolean()) CHECK_MESSAGE(!r["detectable"].get<bool>(), r["sensor"].get<std::string>());
+      }
     }
     if (name.find("dynamic") != std::string::npos) {
       CHECK(read(d / "o/modal/modes.csv").find("\nmode,f_hz,f_ref_hz,") != std::string::npos);
