@@ -197,15 +197,10 @@ int run_command(const RunOptions& opt) {
   detect.threshold = opt.snr;
   if (s.analyses.static_) add_static_verdicts(s, run, detect);
   if (ambient) add_ambient_verdicts(s, *ambient, *run.mesh, detect);
-  if (!s.sensors.empty()) {
-    for (const char* a : {"modal", "harmonic", "transient"}) {
-      const bool ran = (std::string(a) == "modal" && modal) || (std::string(a) == "harmonic" && harmonic) ||
-                       (std::string(a) == "transient" && transient);
-      if (ran)
-        detect.skipped.push_back({a, "every sensor", std::string("verdicts are drawn from the static and ambient analyses; the ") + a +
-                                                         " analysis reports the deterministic response to its own source (its summary block)"});
-    }
-  }
+  if (harmonic) add_harmonic_verdicts(s, *harmonic, *run.mesh, detect);
+  if (transient) add_transient_verdicts(s, *transient, *run.mesh, detect);
+  if (modal && !s.sensors.empty())
+    detect.skipped.push_back({"modal", "every sensor", "natural modes have a shape but no amplitude; see the modal block"});
 
   std::vector<ThresholdResult> thresholds;
   if (opt.find_threshold) thresholds = find_thresholds(s, detect, &progress);

@@ -10,6 +10,8 @@
 #include <sstream>
 
 #include "cli/commands/ambient_run.hpp"
+#include "cli/commands/dynamic_run.hpp"
+#include "cli/commands/transient_run.hpp"
 #include "cli/commands/static_run.hpp"
 #include "cli/errors.hpp"
 
@@ -65,11 +67,10 @@ std::string scaled_scenario_text(const Scenario& s, double k, const std::string&
   }
   YAML::Node analyses = root["analyses"];
   YAML::Node kept;
-  if (analysis == "ambient") {
-    kept["ambient"] = analyses["ambient"];
-  } else {
+  if (analysis == "static")
     kept["static"] = YAML::Node(YAML::NodeType::Map);
-  }
+  else
+    kept[analysis] = analyses[analysis];
   root["analyses"] = kept;
   YAML::Emitter out;
   out << root;
@@ -98,8 +99,9 @@ std::vector<ThresholdResult> find_thresholds(const Scenario& s, const Detectabil
       } else {
         mesh::Quality q;
         const auto m = build_checked_mesh(sk, &q, nullptr);
-        const AmbientRun run = run_ambient(sk, *m, nullptr);
-        add_ambient_verdicts(sk, run, *m, dk);
+        if (family == "ambient") add_ambient_verdicts(sk, run_ambient(sk, *m, nullptr), *m, dk);
+        if (family == "harmonic") add_harmonic_verdicts(sk, run_harmonic(sk, *m, nullptr), *m, dk);
+        if (family == "transient") add_transient_verdicts(sk, run_transient(sk, *m, nullptr), *m, dk);
       }
       snrs.emplace();
       for (const Verdict& r : dk.rows) (*snrs)[r.analysis + "|" + r.sensor] = r.snr;
@@ -111,7 +113,7 @@ std::vector<ThresholdResult> find_thresholds(const Scenario& s, const Detectabil
 
   for (std::size_t i = 0; i < d.rows.size(); ++i) {
     const Verdict& row = d.rows[i];
-    const std::string family = row.analysis == "static" ? "static" : "ambient";
+    const std::string family = row.analysis.rfind("ambient", 0) == 0 ? "ambient" : row.analysis;
     const std::string id = row.analysis + "|" + row.sensor;
     if (progress) progress->step("threshold search: " + row.sensor + " (" + row.analysis + ")", static_cast<double>(i) / static_cast<double>(d.rows.size()));
     ThresholdResult t;

@@ -31,11 +31,11 @@ struct ThresholdResult {
 /// with the size; the search brackets the threshold by doubling or halving the size, then
 /// narrows the bracket by regula falsi on ln SNR against ln size (Illinois variant) until the
 /// SNR is within 1 % of the threshold. Sizes from 1/64 of the scenario's up to the largest the
-/// scenario accepts. `analysis` selects the rows: "static" or "ambient".
+/// scenario accepts. Each row re-runs only the analysis it comes from.
 std::vector<ThresholdResult> find_thresholds(const Scenario& s, const Detectability& d, ProgressLine* progress);
 
 /// The scenario text with void 0 scaled by `k` (and an explicit mesh.near-void scaled down with
-/// it), keeping only `analysis` ("static" or "ambient") under `analyses`. Throws InputError when
+/// it), keeping only `analysis` ("static", "ambient", "harmonic" or "transient") under `analyses`. Throws InputError when
 /// the file cannot be read.
 std::string scaled_scenario_text(const Scenario& s, double k, const std::string& analysis);
 

@@ -297,6 +297,150 @@ void add_ambient_verdicts(const Scenario& s, const AmbientRun& run, const mesh::
   }
 }
 
+namespace {
+
+// LOS weights of the model's components: (x, z) in 2D along the profile's bearing, (x, y, z) in 3D.
+std::array<double, 3> los_weights(const SensorUse& u, int d) {
+  const auto l = solver::los_unit_vector(geometry_of(u));
+  const double br = u.profile_bearing_deg * std::numbers::pi / 180;
+  if (d == 3) return {l.east, l.north, l.up};
+  return {l.east * std::sin(br) + l.north * std::cos(br), l.up, 0.0};
+}
+
+bool seismic(const SensorUse& u) { return u.spec.kind == SensorKind::seismometer || u.spec.kind == SensorKind::geophone; }
+
+// Self-noise RMS over [lo, hi] clipped to the sensor's table; 0 when nothing is left.
+double self_noise_rms(const SensorUse& u, double lo, double hi) {
+  const auto& psd = u.spec.self_noise->psd;
+  lo = std::max({lo, psd.f_hz.front(), u.spec.band_lo_hz->value});
+  hi = std::min({hi, psd.f_hz.back(), u.spec.band_hi_hz->value});
+  return hi > lo ? solver::band_rms(psd, lo, hi) : 0.0;
+}
+
+}  // namespace
+
+void add_harmonic_verdicts(const Scenario& s, const HarmonicRun& run, const mesh::Mesh& m, Detectability& d) {
+  const auto& r = run.result;
+  const int dd = m.dim() == 3 ? 3 : 2;
+  for (const SensorUse& u : s.sensors) {
+    Verdict v = start("harmonic", u);
+    if (!seismic(u) && u.spec.kind != SensorKind::radar_los) {
+      d.skipped.push_back({"harmonic", u.label, "a static survey reading averages a steady vibration to zero"});
+      continue;
+    }
+    const double window = u.spec.window_s ? u.spec.window_s->value : 0;
+    const auto lw = seismic(u) ? std::array<double, 3>{0, 0, 0} : los_weights(u, dd);
+    double best_snr = -1;
+    for (std::size_t f = 0; f < r.frequencies_hz.size(); ++f) {
+      const double fr = r.frequencies_hz[f];
+      double noise = 0;
+      if (seismic(u)) {
+        if (fr < u.spec.band_lo_hz->value || fr > u.spec.band_hi_hz->value) continue;
+        noise = self_noise_rms(u, fr / std::sqrt(2.0), fr * std::sqrt(2.0));
+        if (!(noise > 0)) continue;
+      } else {
+        noise = solver::static_sigma(u.spec);
+      }
+      for (int k : run.surface) {
+        const auto seg = static_cast<Eigen::Index>(dd) * k;
+        std::complex<double> du;
+        double sig = 0;
+        if (seismic(u)) {
+          du = r.voided.u[f][seg + dd - 1] - r.reference.u[f][seg + dd - 1];
+          sig = 2 * std::numbers::pi * fr * std::abs(du) / std::sqrt(2.0);  // RMS velocity of the sinusoid
+        } else {
+          for (int j = 0; j < dd; ++j) du += lw[static_cast<std::size_t>(j)] * (r.voided.u[f][seg + j] - r.reference.u[f][seg + j]);
+          sig = std::abs(du) * (window > 0 ? solver::window_gain(fr, window) : 1.0);
+        }
+        if (sig / noise > best_snr) {
+          best_snr = sig / noise;
+          v.signal = sig;
+          v.noise = noise;
+          const auto& x = m.nodes[static_cast<std::size_t>(r.output_nodes[static_cast<std::size_t>(k)])];
+          v.x = x[0];
+          v.y = x[1];
+          v.how = seismic(u) ? "RMS vertical velocity of the steady anomaly at " + fmt(fr) + " Hz; noise: the sensor's self-noise over "
+                               "one octave around it (a short record; longer records narrow the band)"
+                             : radar_how(u) + " (point value), anomaly amplitude at " + fmt(fr) + " Hz times |sinc(fW)| for its " +
+                                   fmt(window) + " s window";
+        }
+      }
+    }
+    if (best_snr < 0) {
+      d.skipped.push_back({"harmonic", u.label, "no frequency of the sweep lies in its band"});
+      continue;
+    }
+    finish(v, d.threshold);
+    d.rows.push_back(v);
+  }
+}
+
+void add_transient_verdicts(const Scenario& s, const TransientRun& run, const mesh::Mesh& m, Detectability& d) {
+  const auto& r = run.result;
+  const std::size_t dd = m.dim() == 3 ? 3 : 2, nr = r.receivers.size(), ns = r.reference.time_s.size();
+  const double dt = ns > 1 ? r.reference.time_s[1] - r.reference.time_s[0] : 0;
+  const double fp = s.analyses.transient->peak_hz;
+  for (const SensorUse& u : s.sensors) {
+    Verdict v = start("transient", u);
+    if (!seismic(u) && u.spec.kind != SensorKind::radar_los) {
+      d.skipped.push_back({"transient", u.label, "a static survey reading averages a passing wave to nothing"});
+      continue;
+    }
+    if (ns < 3) {
+      d.skipped.push_back({"transient", u.label, "too few samples"});
+      continue;
+    }
+    if (seismic(u)) {
+      v.noise = self_noise_rms(u, fp / 3, 3 * fp);
+      if (!(v.noise > 0)) {
+        d.skipped.push_back({"transient", u.label, "its band does not overlap the wavelet's band (peak/3 to 3 x peak)"});
+        continue;
+      }
+      for (std::size_t q = 0; q < nr; ++q)
+        for (std::size_t k = 1; k + 1 < ns; ++k) {
+          const double vel = (r.difference[((k + 1) * nr + q) * dd + dd - 1] - r.difference[((k - 1) * nr + q) * dd + dd - 1]) / (2 * dt);
+          if (std::abs(vel) > v.signal) {
+            v.signal = std::abs(vel);
+            const auto& x = m.nodes[static_cast<std::size_t>(r.receivers[q])];
+            v.x = x[0];
+            v.y = x[1];
+          }
+        }
+      v.how = "peak vertical velocity of the anomaly (central differences of the seismograms); noise: the sensor's self-noise RMS "
+              "over " + fmt(fp / 3) + "-" + fmt(3 * fp) + " Hz";
+    } else {
+      const auto lw = los_weights(u, static_cast<int>(dd));
+      const double window = u.spec.window_s ? u.spec.window_s->value : 0;
+      const std::size_t w = std::max<std::size_t>(1, static_cast<std::size_t>(std::lround(window / dt)));
+      std::vector<double> los(ns);
+      for (std::size_t q = 0; q < nr; ++q) {
+        for (std::size_t k = 0; k < ns; ++k) {
+          double sum = 0;
+          for (std::size_t j = 0; j < dd; ++j) sum += lw[j] * r.difference[(k * nr + q) * dd + j];
+          los[k] = sum;
+        }
+        double run_sum = 0;  // moving mean over w samples
+        for (std::size_t k = 0; k < ns; ++k) {
+          run_sum += los[k];
+          if (k >= w) run_sum -= los[k - w];
+          const double mean = run_sum / static_cast<double>(std::min(k + 1, w));
+          if (k + 1 >= std::min(w, ns) && std::abs(mean) > v.signal) {
+            v.signal = std::abs(mean);
+            const auto& x = m.nodes[static_cast<std::size_t>(r.receivers[q])];
+            v.x = x[0];
+            v.y = x[1];
+          }
+        }
+      }
+      v.noise = solver::static_sigma(u.spec);
+      v.how = radar_how(u) + " (point value), the line-of-sight anomaly averaged over its " + fmt(window) + " s window (" +
+              std::to_string(w) + " samples), largest over time";
+    }
+    finish(v, d.threshold);
+    d.rows.push_back(v);
+  }
+}
+
 nlohmann::json detectability_json(const Detectability& d) {
   nlohmann::json a = nlohmann::json::array();
   for (const Verdict& v : d.rows) {

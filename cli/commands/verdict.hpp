@@ -10,6 +10,8 @@
 #include <vector>
 
 #include "cli/commands/ambient_run.hpp"
+#include "cli/commands/dynamic_run.hpp"
+#include "cli/commands/transient_run.hpp"
 #include "cli/commands/static_run.hpp"
 #include "cli/scenario/scenario.hpp"
 
@@ -51,6 +53,13 @@ struct Detectability {
 void add_static_verdicts(const Scenario& s, const StaticRun& run, Detectability& d);
 /// The verdicts of the ambient analysis, one per wavefield assumption and sensor.
 void add_ambient_verdicts(const Scenario& s, const AmbientRun& run, const mesh::Mesh& m, Detectability& d);
+
+/// The verdicts of the harmonic analysis: seismic sensors and radar against the steady response
+/// to the scenario's excitation, at the frequency and point where each does best.
+void add_harmonic_verdicts(const Scenario& s, const HarmonicRun& run, const mesh::Mesh& m, Detectability& d);
+/// The verdicts of the transient analysis: seismic sensors (peak velocity anomaly) and radar
+/// (line-of-sight anomaly averaged over its window) against the recorded seismograms.
+void add_transient_verdicts(const Scenario& s, const TransientRun& run, const mesh::Mesh& m, Detectability& d);
 
 /// summary.json's "detectability" array (rows, then the skipped pairs with a reason).
 nlohmann::json detectability_json(const Detectability& d);

@@ -296,6 +296,10 @@ mesh: {order: 2, size: 4, near-void: 0.5, surface: 1.5}
     duration: 0.22
     source: {x: 30, depth: 0, peak-frequency: 10, force: 1.0e4}
     snapshots: 0.1
+sensors:
+  - seismometer-broadband
+  - radar-typical
+  - tiltmeter
 )");
   Cmd c = run("check " + scn.string());
   INFO(c.out);
@@ -352,6 +356,22 @@ mesh: {order: 2, size: 4, near-void: 0.5, surface: 1.5}
   CHECK(checked > 1000);
   CHECK(early == 0);
   CHECK(late_large > 0);
+  // Verdicts from the seismograms: a seismometer row (peak velocity of the anomaly) and a
+  // radar row; none for the tiltmeter.
+  int verdicts = 0;
+  for (const auto& r : j["detectability"]) {
+    if (r["analysis"] != "transient") continue;
+    if (r["sensor"] == "tiltmeter") {
+      CHECK(r["detectable"].is_null());
+      continue;
+    }
+    ++verdicts;
+    CHECK(r["signal"].get<double>() > 0);
+    CHECK(r["noise"].get<double>() > 0);
+    CHECK(r["snr"].get<double>() == doctest::Approx(r["signal"].get<double>() / r["noise"].get<double>()));
+    if (r["sensor"] == "seismometer-broadband") CHECK(r["quantity"] == "vertical_velocity");
+  }
+  CHECK(verdicts == 2);
   const std::string pvd = read(out / "transient/snapshots.pvd");
   CHECK(pvd.find("snapshot_001.vtu") != std::string::npos);
 
