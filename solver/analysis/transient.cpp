@@ -533,13 +533,16 @@ TransientResult solve_transient(const TransientProblem& p, const TransientCallba
   std::optional<ExplicitModel> vd;
   if (p.with_voids) vd.emplace(p, true, r.time_step_s);
 
-  // The source node: nearest to the point among those free in both models.
+  // The source node: nearest to the point among those whose dofs along the force are free in
+  // both models (on the axis of an axisymmetric model u_r is held, u_z free).
   const auto& m = *p.mesh;
   const std::size_t d = static_cast<std::size_t>(dofs_per_node(p.kinematics));
+  const auto& sd = p.source.direction;
+  const std::array<double, 3> comp = d == 3 ? sd : std::array<double, 3>{sd[0], sd[2], 0.0};
   auto moves = [&](const ExplicitModel& em, std::size_t node) {
     const auto& fd = em.free_dofs();
     for (std::size_t j = 0; j < d; ++j)
-      if (!std::binary_search(fd.begin(), fd.end(), static_cast<int>(node * d + j))) return false;
+      if (comp[j] != 0 && !std::binary_search(fd.begin(), fd.end(), static_cast<int>(node * d + j))) return false;
     return true;
   };
   double best = INFINITY;
