@@ -278,6 +278,29 @@ void write_ambient_outputs(const AmbientRun& run, const Scenario& s, const mesh:
   }
   t.write(dir / "ambient" / "surface.csv");
 
+  // PSDs at every surface point and frequency.
+  std::vector<std::string> pc{"wavefield", "f_hz", "x"};
+  if (three_d) pc.push_back("y");
+  for (const char* kind : {"", "_ref", "_d"})
+    for (const auto& c : comps) pc.push_back(std::string("psd") + (std::string(kind) == "_d" ? "_d" + c : "_" + c + kind));
+  CsvTable pt(pc);
+  pt.comment(std::string("voidsign ") + VOIDSIGN_VERSION + " ambient displacement PSD per surface point with and without voids: " +
+             s.title);
+  pt.comment("units: SI; f_hz Hz; x" + std::string(three_d ? ", y" : "") + " m; psd_* one-sided displacement PSD, m^2/Hz; *_ref "
+             "without voids; psd_d* of the anomaly (with voids minus without, per load case, summed in power); wavefield 0 "
+             "body-waves, 1 surface-waves");
+  for (const AmbientWavefield& f : run.fields)
+    for (std::size_t k = 0; k < run.frequencies_hz.size(); ++k)
+      for (std::size_t q = 0; q < run.points.size(); ++q) {
+        const auto& x = m.nodes[static_cast<std::size_t>(run.points[q])];
+        row = {f.name == "body-waves" ? 0.0 : 1.0, run.frequencies_hz[k], x[0]};
+        if (three_d) row.push_back(x[1]);
+        for (const auto* v : {&f.psd.model, &f.psd.reference, &f.psd.anomaly})
+          for (std::size_t j = 0; j < d; ++j) row.push_back((*v)[k][q * d + j]);
+        pt.add_row(row);
+      }
+  pt.write(dir / "ambient" / "psd.csv");
+
   // Spectra at each wavefield's point of largest vertical anomaly.
   std::vector<std::string> sc{"wavefield", "f_hz", "x"};
   if (three_d) sc.push_back("y");

@@ -53,7 +53,7 @@ struct AmbientRun {
 
 /// Runs `analyses.ambient` of `s` on `m`. Throws InputError or SolveError.
 AmbientRun run_ambient(const Scenario& s, const mesh::Mesh& m, ProgressLine* progress);
-/// ambient/surface.csv and ambient/spectra.csv under `dir`.
+/// ambient/surface.csv, ambient/psd.csv and ambient/spectra.csv under `dir`.
 void write_ambient_outputs(const AmbientRun& run, const Scenario& s, const mesh::Mesh& m, const std::filesystem::path& dir);
 /// The "ambient" block of summary.json.
 nlohmann::json ambient_summary(const AmbientRun& run, const Scenario& s, const mesh::Mesh& m);

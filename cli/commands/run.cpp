@@ -127,7 +127,7 @@ void print_ambient(const AmbientRun& a, const mesh::Mesh& mesh, const fs::path& 
                 x[0], a.d == 3 ? (", y = " + std::to_string(x[1])).c_str() : "", z, z > 0 ? dz / z : 0.0);
   }
   std::printf("  %-34s %12.2g\n", "solve residual (worst)", a.residual);
-  std::printf("Results in %s/ambient/ (surface.csv, spectra.csv)\n", dir.string().c_str());
+  std::printf("Results in %s/ambient/ (surface.csv, psd.csv, spectra.csv)\n", dir.string().c_str());
 }
 
 void print_transient(const TransientRun& t, const mesh::Mesh& mesh, const fs::path& dir) {

@@ -221,15 +221,28 @@ void setup_drm(Setup& s) {
   const bool three_d = m.dim() == 3;
   DrmBox box = p.box;
   if (box.half_width <= 0 || box.depth <= 0 || (three_d && box.half_length <= 0)) {
-    double h = 0;
-    for (std::size_t c = 0; c < nc; ++c)
+    // Halfway between the voids' reach and the band's inner edge: the DRM layer then lies in
+    // the far field of both, whatever the size of the coarse cells there (a margin of two of
+    // the largest cells was too much for coarse tetrahedra). Without voids: two of the largest
+    // cells inside the band.
+    double reach_x = -1, reach_y = -1, reach_z = -1, h = 0;
+    for (std::size_t c = 0; c < nc; ++c) {
       if (!s.pml_cell[c]) h = std::max(h, largest_edge(m, c));
+      if (m.void_id[c] < 0) continue;
+      for (int a = 0; a < m.npc(); ++a) {
+        const auto& q = m.nodes[static_cast<std::size_t>(m.cell(c)[a])];
+        reach_x = std::max(reach_x, std::abs(q[0]));
+        reach_y = std::max(reach_y, std::abs(q[1]));
+        reach_z = std::max(reach_z, m.z_max - q[2]);
+      }
+    }
     const double edge_x = s.pml.thickness > 0 ? std::min(-s.pml.x_lo, s.pml.x_hi) : std::min(-m.x_min, m.x_max);
     const double edge_y = s.pml.thickness > 0 ? std::min(-s.pml.y_lo, s.pml.y_hi) : std::min(-m.y_min, m.y_max);
     const double edge_z = m.z_max - (s.pml.thickness > 0 ? s.pml.z_lo : m.z_min);
-    if (box.half_width <= 0) box.half_width = edge_x - 2 * h;
-    if (three_d && box.half_length <= 0) box.half_length = edge_y - 2 * h;
-    if (box.depth <= 0) box.depth = edge_z - 2 * h;
+    auto between = [&](double reach, double edge) { return reach >= 0 ? 0.5 * (reach + edge) : edge - 2 * h; };
+    if (box.half_width <= 0) box.half_width = between(reach_x, edge_x);
+    if (three_d && box.half_length <= 0) box.half_length = between(reach_y, edge_y);
+    if (box.depth <= 0) box.depth = between(reach_z, edge_z);
   }
   std::vector<char> cell_in(nc, 0), node_in(nn, 0), node_out(nn, 0);
   for (std::size_t c = 0; c < nc; ++c) {

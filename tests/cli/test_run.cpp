@@ -427,6 +427,7 @@ mesh: {order: 2, size: 4, near-void: 0.5, surface: 1.5}
   CHECK(surf.find("units: SI") != std::string::npos);
   CHECK(surf.find("\nwavefield,band_lo_hz,band_hi_hz,x,rms_x,rms_z,rms_x_ref,rms_z_ref,rms_dx,rms_dz\n") != std::string::npos);
   CHECK(read(out / "ambient/spectra.csv").find("\nwavefield,f_hz,x,noise_psd_z,psd_z,psd_z_ref,psd_dz") != std::string::npos);
+  CHECK(read(out / "ambient/psd.csv").find("\nwavefield,f_hz,x,psd_x,psd_z,psd_x_ref,psd_z_ref,psd_dx,psd_dz\n") != std::string::npos);
   const auto j = nlohmann::json::parse(read(out / "summary.json"))["ambient"];
   CHECK(j["frequencies"].get<int>() == 13);  // 4 per octave over 3 octaves, both ends
   CHECK(j["residual"].get<double>() < 1e-8);
@@ -540,5 +541,41 @@ sensors:
   // An independent re-run at that radius.
   const auto jr = run_json("rerun", scenario(p3, r_star));
   CHECK(jr["detectability"][1]["snr"].get<double>() == doctest::Approx(3.0).epsilon(0.05));
+  fs::remove_all(d);
+}
+
+TEST_CASE("a 3d ambient run: P, two S and eight surface-source cases, matched to the noise above the void") {
+  const fs::path d = temp_dir("ambient3d");
+  const fs::path scn = write_file(d, "a3.yaml", R"(format: 1
+title: 3d ambient test
+model: 3d
+domain: {width: 160, length: 160, depth: 80}
+layers:
+  - {material: limestone-weak}
+voids:
+  - {shape: sphere, x: 0, y: 0, depth: 6, radius: 2}
+analyses:
+  ambient:
+    noise: high
+    band: [2, 2.5]
+    per-octave: 2
+mesh: {order: 1, size: 12, near-void: 0.7, surface: 6}
+sensors:
+  - seismometer-broadband
+)");
+  const Cmd c = run("run " + scn.string() + " --out " + (d / "o").string());
+  INFO(c.out);
+  REQUIRE(c.rc == 0);
+  const auto j = nlohmann::json::parse(read(d / "o/summary.json"))["ambient"];
+  CHECK(j["wavefields"]["body-waves"]["cases"].size() == 3);
+  CHECK(j["wavefields"]["surface-waves"]["cases"].size() == 8);
+  CHECK(j["residual"].get<double>() < 1e-8);
+  CHECK(std::hypot(j["matched_at"]["x"].get<double>(), j["matched_at"]["y"].get<double>()) < 7.5);
+  for (const char* w : {"body-waves", "surface-waves"}) {
+    const auto& f = j["wavefields"][w];
+    CHECK(f["peak_vertical"]["rms_dz"].get<double>() > 0);
+    CHECK(f["peak_vertical"]["relative"].get<double>() < 1);
+  }
+  CHECK(read(d / "o/ambient/surface.csv").find("\nwavefield,band_lo_hz,band_hi_hz,x,y,rms_x,rms_y,rms_z,") != std::string::npos);
   fs::remove_all(d);
 }
