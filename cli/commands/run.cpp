@@ -293,6 +293,7 @@ int run_command(const RunOptions& opt) {
   if (ambient) print_ambient(*ambient, *run.mesh, dir);
   print_detectability(detect);
   print_thresholds(thresholds, detect.threshold);
+  std::printf("\nReport: %s (plots in %s)\n", (dir / "report.html").string().c_str(), (dir / "plots").string().c_str());
   if (!s.analyses.static_) std::printf("Caution: %s\n", caution_text);
   return exit_ok;
 }
