@@ -40,7 +40,7 @@ struct ModalOptions {
   double shift_hz = 0;
   double tolerance = 1e-10;  ///< Spectra's relative tolerance on the Ritz values
   int max_iterations = 1000;  ///< Spectra's restart limit
-  int subspace = 0;           ///< Lanczos basis size; 0 = max(2 n_modes + 1, 20)
+  int subspace = 0;           ///< Lanczos basis size; 0 = max(3 n_modes, 20)
   double max_residual = 1e-6;  ///< largest accepted relative residual of a mode
   /// Unknowns per node (dofs_per_node(kinematics)), for the node-graph fill-reducing ordering
   /// of the factor; 1 treats every unknown as its own node.

@@ -12,43 +12,11 @@
 
 #include "solver/analysis/transient.hpp"
 #include "solver/assembly/system.hpp"
+#include "tests/bench/structured_block.hpp"
 
 using namespace voidsign;
 
 namespace {
-
-mesh::Mesh block(double width, double depth, double h) {
-  mesh::Mesh m;
-  m.type = mesh::CellType::tri6;
-  const int nx = static_cast<int>(std::lround(width / h)), nz = static_cast<int>(std::lround(depth / h));
-  const int gx = 2 * nx + 1, gz = 2 * nz + 1;
-  for (int k = 0; k < gz; ++k)
-    for (int i = 0; i < gx; ++i) m.nodes.push_back({-0.5 * width + 0.5 * h * i, 0.0, -depth + 0.5 * h * k});
-  auto id = [&](int i, int k) { return k * gx + i; };
-  auto mid = [&](int p, int q) { return id((p % gx + q % gx) / 2, (p / gx + q / gx) / 2); };
-  for (int k = 0; k < nz; ++k)
-    for (int i = 0; i < nx; ++i) {
-      const int a = id(2 * i, 2 * k), b = id(2 * i + 2, 2 * k), c = id(2 * i + 2, 2 * k + 2), d = id(2 * i, 2 * k + 2);
-      auto tri = [&](int p, int q, int r) {
-        m.cells.insert(m.cells.end(), {p, q, r, mid(p, q), mid(q, r), mid(r, p)});
-        m.layer.push_back(0);
-        m.void_id.push_back(-1);
-      };
-      if ((i + k) % 2 == 0) {
-        tri(a, b, c);
-        tri(a, c, d);
-      } else {
-        tri(a, b, d);
-        tri(b, c, d);
-      }
-    }
-  m.x_min = -0.5 * width;
-  m.x_max = 0.5 * width;
-  m.z_min = -depth;
-  m.z_max = 0;
-  mesh::finish_topology(m, 1e-6);
-  return m;
-}
 
 double now() { return std::chrono::duration<double>(std::chrono::steady_clock::now().time_since_epoch()).count(); }
 
@@ -62,7 +30,7 @@ int main(int argc, char** argv) {
     // (2nx+1)(2nz+1) nodes with nx = 2 nz: ≈ 8 nz² nodes, 16 nz² dofs.
     const int nz = static_cast<int>(std::sqrt(target / 16));
     const double h = 1.0;
-    const auto m = block(2.0 * nz * h, nz * h, h);
+    const auto m = bench::block(2.0 * nz * h, nz * h, h);
     solver::TransientProblem p;
     p.mesh = &m;
     const double g = 2000.0 * 100 * 100;
