@@ -138,13 +138,7 @@ AmbientRun run_ambient(const Scenario& s, const mesh::Mesh& m, ProgressLine* pro
                    : a.noise == AmbientAnalysis::Noise::low ? "Peterson (1993) New Low Noise Model (NLNM)"
                                                             : "Peterson (1993) New High Noise Model (NHNM)";
 
-  solver::HarmonicProblem p;
-  p.mesh = &m;
-  p.kinematics = kinematics_of(s);
-  for (const Layer& l : s.layers) {
-    const Material& mat = s.materials.at(l.material);
-    p.layers.push_back({{mat.young, mat.poisson, mat.density}, mat.damping, l.thickness});
-  }
+  solver::HarmonicProblem p = harmonic_problem_of(s, m);
   p.frequencies_hz = a.frequencies_hz;
   p.output_nodes = m.surface_nodes;
   run.pml_thickness = absorbing_band(s, m, a.absorbing, "analyses.ambient");

@@ -382,6 +382,17 @@ double absorbing_band(const Scenario& s, const mesh::Mesh& m, double requested, 
 }
 
 
+solver::HarmonicProblem harmonic_problem_of(const Scenario& s, const mesh::Mesh& m) {
+  solver::HarmonicProblem p;
+  p.mesh = &m;
+  p.kinematics = kinematics_of(s);
+  for (const Layer& l : s.layers) {
+    const Material& mat = s.materials.at(l.material);
+    p.layers.push_back({{mat.young, mat.poisson, mat.density}, mat.damping, l.thickness});
+  }
+  return p;
+}
+
 std::vector<int> surface_points(const solver::HarmonicResult& r, const mesh::Mesh& m) {
   std::vector<int> pos(m.n_nodes(), -1), out;
   for (std::size_t k = 0; k < r.output_nodes.size(); ++k) pos[static_cast<std::size_t>(r.output_nodes[k])] = static_cast<int>(k);
@@ -398,13 +409,7 @@ std::vector<int> surface_points(const solver::HarmonicResult& r, const mesh::Mes
 HarmonicRun run_harmonic(const Scenario& s, const mesh::Mesh& m, ProgressLine* progress) {
   const HarmonicAnalysis& a = *s.analyses.harmonic;
   HarmonicRun run;
-  solver::HarmonicProblem p;
-  p.mesh = &m;
-  p.kinematics = kinematics_of(s);
-  for (const Layer& l : s.layers) {
-    const Material& mat = s.materials.at(l.material);
-    p.layers.push_back({{mat.young, mat.poisson, mat.density}, mat.damping, l.thickness});
-  }
+  solver::HarmonicProblem p = harmonic_problem_of(s, m);
   p.frequencies_hz = a.frequencies_hz;
   if (a.excitation == HarmonicAnalysis::Excitation::wave) {
     p.source = solver::HarmonicProblem::Source::plane_wave;

@@ -69,6 +69,10 @@ nlohmann::json harmonic_summary(const HarmonicRun& run, const Scenario& s, const
 /// edge. Throws InputError (naming `key`, e.g. "analyses.harmonic") when nothing fits.
 double absorbing_band(const Scenario& s, const mesh::Mesh& m, double requested, const std::string& key);
 
+/// A frequency-domain problem on mesh `m` with the scenario's kinematics and layers (materials,
+/// damping, thicknesses); sources, frequencies and the absorbing band are left to the caller.
+solver::HarmonicProblem harmonic_problem_of(const Scenario& s, const mesh::Mesh& m);
+
 /// Indices into r.output_nodes of the surface nodes outside the absorbing band, in the mesh's
 /// surface order (by x, then y).
 std::vector<int> surface_points(const solver::HarmonicResult& r, const mesh::Mesh& m);
