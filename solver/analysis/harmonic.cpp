@@ -14,6 +14,7 @@
 #include <sstream>
 #include <stdexcept>
 
+#include "solver/analysis/plane_wave.hpp"
 #include "solver/assembly/system.hpp"
 
 namespace voidsign::solver {
@@ -98,19 +99,6 @@ std::array<double, 3> corner_centroid(const mesh::Mesh& m, std::size_t c) {
   return g;
 }
 
-double largest_edge(const mesh::Mesh& m, std::size_t c) {
-  const int* v = m.cell(c);
-  const int nc = m.dim() == 3 ? 4 : 3;
-  double h = 0;
-  for (int a = 0; a < nc; ++a)
-    for (int b = a + 1; b < nc; ++b) {
-      const auto& p = m.nodes[v[a]];
-      const auto& q = m.nodes[v[b]];
-      h = std::max(h, std::hypot(p[0] - q[0], p[1] - q[1], p[2] - q[2]));
-    }
-  return h;
-}
-
 // The full (both triangles) CSC pattern of the lower-triangle pattern `lower`, zero values.
 ComplexMatrix full_pattern(const SparseMatrix& lower) {
   const long n = lower.cols();
@@ -190,7 +178,6 @@ struct Setup {
     HarmonicProblem::LoadCase load;
     long force_dof = -1;
     std::array<double, 3> force_dir{0, 0, 0};
-    int wave_dof = 0;
   };
   std::vector<Case> cases;
   std::vector<LayerCell> layer_cells;
@@ -217,87 +204,48 @@ std::vector<char> outer_fixed(const mesh::Mesh& m, int d) {
 void setup_drm(Setup& s) {
   const HarmonicProblem& p = *s.p;
   const mesh::Mesh& m = *s.m;
-  const std::size_t nc = m.n_cells(), nn = m.n_nodes();
-  const bool three_d = m.dim() == 3;
-  DrmBox box = p.box;
-  if (box.half_width <= 0 || box.depth <= 0 || (three_d && box.half_length <= 0)) {
-    // Halfway between the voids' reach and the band's inner edge: the DRM layer then lies in
-    // the far field of both, whatever the size of the coarse cells there (a margin of two of
-    // the largest cells was too much for coarse tetrahedra). Without voids: two of the largest
-    // cells inside the band.
-    double reach_x = -1, reach_y = -1, reach_z = -1, h = 0;
-    for (std::size_t c = 0; c < nc; ++c) {
-      if (!s.pml_cell[c]) h = std::max(h, largest_edge(m, c));
-      if (m.void_id[c] < 0) continue;
-      for (int a = 0; a < m.npc(); ++a) {
-        const auto& q = m.nodes[static_cast<std::size_t>(m.cell(c)[a])];
-        reach_x = std::max(reach_x, std::abs(q[0]));
-        reach_y = std::max(reach_y, std::abs(q[1]));
-        reach_z = std::max(reach_z, m.z_max - q[2]);
-      }
-    }
-    const double edge_x = s.pml.thickness > 0 ? std::min(-s.pml.x_lo, s.pml.x_hi) : std::min(-m.x_min, m.x_max);
-    const double edge_y = s.pml.thickness > 0 ? std::min(-s.pml.y_lo, s.pml.y_hi) : std::min(-m.y_min, m.y_max);
-    const double edge_z = m.z_max - (s.pml.thickness > 0 ? s.pml.z_lo : m.z_min);
-    auto between = [&](double reach, double edge) { return reach >= 0 ? 0.5 * (reach + edge) : edge - 2 * h; };
-    if (box.half_width <= 0) box.half_width = between(reach_x, edge_x);
-    if (three_d && box.half_length <= 0) box.half_length = between(reach_y, edge_y);
-    if (box.depth <= 0) box.depth = between(reach_z, edge_z);
-  }
-  std::vector<char> cell_in(nc, 0), node_in(nn, 0), node_out(nn, 0);
-  for (std::size_t c = 0; c < nc; ++c) {
-    const auto g = corner_centroid(m, c);
-    cell_in[c] = std::abs(g[0]) < box.half_width && (!three_d || std::abs(g[1]) < box.half_length) &&
-                 m.z_max - g[2] < box.depth;
-    const int* v = m.cell(c);
-    for (int a = 0; a < m.npc(); ++a) (cell_in[c] ? node_in : node_out)[static_cast<std::size_t>(v[a])] = 1;
-  }
-  s.inside = node_in;
-  // Layer tops for the consistency check of the tags.
-  std::vector<double> top(p.layers.size() + 1, 0);
-  for (std::size_t j = 0; j < p.layers.size(); ++j)
-    top[j + 1] = j + 1 < p.layers.size() ? top[j] + p.layers[j].thickness : std::numeric_limits<double>::infinity();
-  for (std::size_t c = 0; c < nc; ++c) {
-    const int* v = m.cell(c);
-    bool touches = false;
-    for (int a = 0; a < m.npc(); ++a) touches |= node_in[static_cast<std::size_t>(v[a])] && node_out[static_cast<std::size_t>(v[a])];
-    if (m.void_id[c] >= 0 && (!cell_in[c] || touches))
-      throw std::invalid_argument("harmonic: void " + std::to_string(m.void_id[c]) +
-                                  " reaches the boundary of the DRM box: enlarge the box or the block");
-    if (cell_in[c] || !touches) continue;
-    if (s.pml_cell[c])
-      throw std::invalid_argument("harmonic: the DRM box touches the PML band: make the box smaller");
-    const auto g = corner_centroid(m, c);
-    const double depth = m.z_max - g[2];
-    const auto lj = static_cast<std::size_t>(m.layer[c]);
-    const double tol = 1e-6 * (m.z_max - m.z_min);
-    if (depth < top[lj] - tol || depth > top[lj + 1] + tol)
-      throw std::invalid_argument("harmonic: the layer thicknesses do not match the mesh's layer tags (cell " +
-                                  std::to_string(c) + ")");
+  DrmLimits limits{m.x_min, m.x_max, m.y_min, m.y_max, m.z_min};
+  if (s.pml.thickness > 0) limits = {s.pml.x_lo, s.pml.x_hi, s.pml.y_lo, s.pml.y_hi, s.pml.z_lo};
+  std::vector<double> thickness;
+  for (const HarmonicLayer& l : p.layers) thickness.push_back(l.thickness);
+  DrmLayer layer = drm_layer(m, p.box, limits, s.pml_cell, thickness, "harmonic");
+  s.inside = std::move(layer.inside);
+  for (DrmLayer::Cell& c : layer.cells) {
     LayerCell lc;
-    lc.cell = c;
+    lc.cell = c.cell;
     const int ndof = m.npc() * s.d;
     lc.ke.resize(static_cast<std::size_t>(ndof * ndof));
     lc.me.resize(lc.ke.size());
-    dynamic_parts(m, c, layer_of(s, c).elastic, p.kinematics, lc.ke, lc.me);
-    lc.damping = layer_of(s, c).damping;
-    for (int a = 0; a < m.npc(); ++a) {
-      const auto node = static_cast<std::size_t>(v[a]);
-      lc.on_boundary.push_back(node_in[node]);
+    dynamic_parts(m, c.cell, layer_of(s, c.cell).elastic, p.kinematics, lc.ke, lc.me);
+    lc.damping = layer_of(s, c.cell).damping;
+    const int* v = m.cell(c.cell);
+    for (int a = 0; a < m.npc(); ++a)
       for (int j = 0; j < s.d; ++j)
-        if (s.fixed_ref[node * static_cast<std::size_t>(s.d) + static_cast<std::size_t>(j)])
+        if (s.fixed_ref[static_cast<std::size_t>(v[a]) * static_cast<std::size_t>(s.d) + static_cast<std::size_t>(j)])
           throw std::invalid_argument("harmonic: the DRM box reaches the fixed outer boundary");
-    }
+    lc.on_boundary = std::move(c.on_boundary);
     s.layer_cells.push_back(std::move(lc));
   }
-  if (s.layer_cells.empty()) throw std::invalid_argument("harmonic: the DRM box is empty or covers the whole block");
 }
 
-void setup_wave(Setup& s, Setup::Case& c) {
-  const PlaneWave& w = c.load.wave;
-  if (w.polarization < 0 || w.polarization > 1)
-    throw std::invalid_argument("harmonic: plane-wave polarization must be 0 (x) or 1 (y)");
-  c.wave_dof = w.type == IncidentWave::s ? (s.m->dim() == 3 ? w.polarization : 0) : vertical_dof(s.p->kinematics);
+void setup_wave(const Setup& s, const Setup::Case& c) {
+  // Validates the wave (polarization, SH in plane strain, angle) once, before any factorisation.
+  const double f0 = *std::min_element(s.p->frequencies_hz.begin(), s.p->frequencies_hz.end());
+  (void)IncidentField(s.p->layers, c.load.wave, 2 * std::numbers::pi * f0, s.m->dim() == 3);
+}
+
+// (u_x, u_z) or (u_x, u_y, u_z) of the free field at node n into u[0..d).
+void free_field_at(const Setup& s, const IncidentField& field, std::size_t n, Complex* u) {
+  const auto& x = s.m->nodes[n];
+  const auto v = field.at(x[0], x[1], s.m->z_max - x[2]);
+  if (s.d == 3) {
+    u[0] = v[0];
+    u[1] = v[1];
+    u[2] = v[2];
+  } else {
+    u[0] = v[0];
+    u[1] = v[2];
+  }
 }
 
 // The node nearest the case's force point among those of cells outside voids and the PML;
@@ -344,15 +292,13 @@ ComplexVector right_hand_side(const Setup& s, double omega, const Setup::Case& l
     return f;
   }
   // Domain reduction method: f_b = −S_be u⁰_e, f_e = +S_eb u⁰_b on each cell of the layer.
-  const VerticalColumn column(p.layers, lc_case.load.wave.type, omega, lc_case.load.wave.amplitude);
+  const IncidentField field(p.layers, lc_case.load.wave, omega, m.dim() == 3);
   const int npc = m.npc();
   const int nd = npc * s.d;
   std::vector<Complex> u0(static_cast<std::size_t>(nd)), fe(static_cast<std::size_t>(nd));
   for (const LayerCell& lc : s.layer_cells) {
     const int* v = m.cell(lc.cell);
-    std::fill(u0.begin(), u0.end(), Complex(0.0));
-    for (int a = 0; a < npc; ++a)
-      u0[static_cast<std::size_t>(s.d * a + lc_case.wave_dof)] = column.displacement(m.z_max - m.nodes[v[a]][2]);
+    for (int a = 0; a < npc; ++a) free_field_at(s, field, static_cast<std::size_t>(v[a]), &u0[static_cast<std::size_t>(s.d * a)]);
     const Complex fac = hysteretic_factor(lc.damping);
     const double w2 = omega * omega;
     for (int r = 0; r < nd; ++r) {
@@ -468,14 +414,17 @@ void solve_unit(const Setup& s, const Unit& u, ComplexLu& lu, ComplexMatrix& a, 
     // Keep the output nodes; outside the DRM box add the free field back to the scattered field.
     const mesh::Mesh& m = *s.m;
     ComplexVector out(static_cast<long>(s.outputs.size()) * s.d);
-    std::unique_ptr<VerticalColumn> column;
+    std::unique_ptr<IncidentField> field;
     if (lc.load.source == HarmonicProblem::Source::plane_wave)
-      column = std::make_unique<VerticalColumn>(p.layers, lc.load.wave.type, omega, lc.load.wave.amplitude);
+      field = std::make_unique<IncidentField>(p.layers, lc.load.wave, omega, m.dim() == 3);
     for (std::size_t k = 0; k < s.outputs.size(); ++k) {
       const auto n = static_cast<std::size_t>(s.outputs[k]);
       for (int j = 0; j < s.d; ++j) out[static_cast<long>(k) * s.d + j] = sol.x[static_cast<long>(n) * s.d + j];
-      if (column && !s.inside[n] && s.physical[n])
-        out[static_cast<long>(k) * s.d + lc.wave_dof] += column->displacement(m.z_max - m.nodes[n][2]);
+      if (field && !s.inside[n] && s.physical[n]) {
+        Complex u0[3];
+        free_field_at(s, *field, n, u0);
+        for (int j = 0; j < s.d; ++j) out[static_cast<long>(k) * s.d + j] += u0[j];
+      }
     }
     (c == 0 ? model.u[u.freq] : model.u_extra[c - 1][u.freq]) = std::move(out);
   }

@@ -10,10 +10,10 @@
 /// Sources:
 /// - a point force (plane strain: a line force per metre of the out-of-plane direction [N/m];
 ///   3D: [N]) at the node nearest a given point, in a given direction;
-/// - a vertically incident plane S wave (motion along x, or y in 3D) or P wave (motion along z)
-///   entering from the half-space below, brought in by the domain reduction method (Bielak,
+/// - a plane P, SV or SH (3D) wave entering from the half-space below, vertically or at an angle,
+///   brought in by the domain reduction method (Bielak,
 ///   Loukakis, Hisada & Yoshimura 2003, Bull. Seismol. Soc. Am. 93(2), 817–824; from memory).
-///   The free field u⁰ is the exact response of the layered column (VerticalColumn). Effective
+///   The free field u⁰ is the exact response of the layered ground (LayeredPlaneWave). Effective
 ///   forces act on the single layer of cells just outside the "DRM box" (the interior region,
 ///   which must contain every void): with b the nodes on the box boundary Γ and e the other
 ///   nodes of those cells, f_b = −S_be u⁰_e and f_e = +S_eb u⁰_b. The solution is then the total
@@ -30,6 +30,7 @@
 #include <vector>
 
 #include "mesh/core/mesh.hpp"
+#include "solver/analysis/drm.hpp"
 #include "solver/analysis/static.hpp"
 #include "solver/fe/element.hpp"
 #include "solver/fe/pml.hpp"
@@ -74,21 +75,20 @@ struct PointForce {
   double amplitude = 1;                       ///< N (3D) or N/m (plane strain)
 };
 
-/// A vertically incident plane wave.
+/// A plane wave entering from the half-space below the last layer, vertically or at an angle
+/// (its free field: solver/analysis/plane_wave.hpp).
 struct PlaneWave {
   IncidentWave type = IncidentWave::s;
-  double amplitude = 1;  ///< m: outcrop motion (twice the incident wave), see the file comment
-  int polarization = 0;  ///< S waves in 3D: motion along x (0) or y (1)
+  double amplitude = 1;  ///< m: twice the incident wave (at vertical incidence the outcrop motion)
+  /// S waves: 0 = SV, motion in the vertical plane of travel (at vertical incidence and azimuth 0
+  /// along x); 1 = SH, horizontal motion across it (3D only; along y at azimuth 0).
+  int polarization = 0;
+  /// Angle from the vertical in the half-space [rad], |θ| < π/2. Plane strain: signed, positive
+  /// for a wave travelling toward +x.
+  double incidence = 0;
+  double azimuth = 0;  ///< 3D: horizontal direction of travel [rad], anticlockwise from +x
 };
 
-/// The interior region of the domain reduction method: |x| < half_width, |y| < half_length (3D),
-/// depth below the surface < depth. A cell belongs to it when its centroid does. Zero entries are
-/// chosen automatically: the PML's inner edge moved in by two of the largest cell sizes.
-struct DrmBox {
-  double half_width = 0;   ///< m
-  double half_length = 0;  ///< m (3D)
-  double depth = 0;        ///< m
-};
 
 /// How the frequencies are spread over the cores.
 enum class FrequencyLoop {
@@ -107,7 +107,7 @@ struct HarmonicProblem {
   enum class Source { point_force, plane_wave } source = Source::plane_wave;
   PointForce force;
   PlaneWave wave;
-  DrmBox box;
+  DrmBox box;  ///< the DRM box; zero entries: chosen (drm_layer), limited by the PML's inner edge
 
   /// Absorbing band along the sides and bottom, inside the mesh [m]; 0 = none. The outer boundary
   /// (sides, bottom) is fixed either way; the ground surface is free.

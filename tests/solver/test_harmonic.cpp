@@ -13,6 +13,7 @@
 
 #include "mesh/build/mesher.hpp"
 #include "solver/analysis/harmonic.hpp"
+#include "solver/analysis/plane_wave.hpp"
 #include "solver/fe/pml.hpp"
 
 using namespace voidsign;
@@ -604,4 +605,92 @@ TEST_CASE("harmonic extra load cases: each equals its own sweep, on the same fac
     }
   // The P wave moves the surface vertically, the S wave horizontally, far from the void.
   CHECK(all.reference.u_extra[0][0].norm() > 0);
+}
+
+TEST_CASE("harmonic inclined plane waves: the FE surface motion equals the layered free field (P, SV pre- and post-critical)") {
+  // No voids: the total field is the free field of solver::LayeredPlaneWave (itself checked in
+  // test_plane_wave.cpp against Aki & Richards 2002 and energy conservation) wherever the DRM and
+  // the PML work; outside the DRM box it is the scattered field (only discretisation error) plus
+  // the free field added back. A soft layer on rock; tri6, 2 m cells, 16+ per S wavelength.
+  const std::vector<solver::HarmonicLayer> layers = {layer(200, 0.3, 1800, 0.03, 10), layer(600, 0.25, 2200, 0.01)};
+  const auto xs = spaced(-100, 100, 2);
+  const auto zs = runs({{-60, -10, 2.0}, {-10, 0, 1.0}});
+  const mesh::Mesh m = structured_mesh(xs, {}, zs, 2, [](double z) { return z > -10 ? 0 : 1; });
+  struct Case {
+    solver::IncidentWave type;
+    double degrees;
+  };
+  for (const Case c : {Case{solver::IncidentWave::p, 30}, Case{solver::IncidentWave::s, 20},
+                       Case{solver::IncidentWave::s, -45}, Case{solver::IncidentWave::p, -60}}) {
+    solver::HarmonicProblem p;
+    p.mesh = &m;
+    p.layers = layers;
+    p.frequencies_hz = {2.0, 6.0};
+    p.wave.type = c.type;
+    p.wave.incidence = c.degrees * pi / 180;
+    p.pml_thickness = 16;
+    p.with_voids = false;
+    p.output_nodes = m.surface_nodes;
+    const auto r = solver::solve_harmonic(p);
+    for (std::size_t f = 0; f < p.frequencies_hz.size(); ++f) {
+      const solver::IncidentField exact(layers, p.wave, 2 * pi * p.frequencies_hz[f], false);
+      double worst = 0, scale = 0;
+      for (std::size_t k = 0; k < r.output_nodes.size(); ++k) {
+        const auto& x = m.nodes[static_cast<std::size_t>(r.output_nodes[k])];
+        if (std::abs(x[0]) > 80) continue;  // the PML band
+        const auto u = exact.at(x[0], 0, 0);
+        const Complex ux = r.reference.u[f][static_cast<long>(2 * k)], uz = r.reference.u[f][static_cast<long>(2 * k + 1)];
+        worst = std::max(worst, std::hypot(std::abs(ux - u[0]), std::abs(uz - u[2])));
+        scale = std::max(scale, std::hypot(std::abs(u[0]), std::abs(u[2])));
+      }
+      std::printf("inclined %s %+.0f deg, %.0f Hz: surface |u| %.3f x amplitude, FE against the free field %.2f %% (residual %.1e)\n",
+                  c.type == solver::IncidentWave::p ? "P" : "SV", c.degrees, p.frequencies_hz[f], scale, 100 * worst / scale,
+                  r.reference.residual[f]);
+      CHECK(worst < 0.02 * scale);
+    }
+  }
+}
+
+TEST_CASE("harmonic 3D inclined plane waves: SV and SH at an azimuth against the layered free field") {
+  // Both waves on one factorisation (the SH wave as an extra load case).
+  const std::vector<solver::HarmonicLayer> layers = {layer(200, 0.3, 1800, 0.03, 8), layer(500, 0.25, 2200, 0.01)};
+  const auto xs = spaced(-30, 30, 5);
+  const auto zs = runs({{-28, -8, 4.0}, {-8, 0, 4.0}});
+  const mesh::Mesh m = structured_mesh(xs, xs, zs, 2, [](double z) { return z > -8 ? 0 : 1; });
+  solver::HarmonicProblem p;
+  p.mesh = &m;
+  p.kinematics = solver::Kinematics::solid;
+  p.layers = layers;
+  p.frequencies_hz = {3.0};
+  p.wave = {solver::IncidentWave::s, 1.0, 0, 25 * pi / 180, 30 * pi / 180};
+  solver::HarmonicProblem::LoadCase sh;
+  sh.wave = {solver::IncidentWave::s, 1.0, 1, 40 * pi / 180, 120 * pi / 180};
+  p.extra_cases = {sh};
+  p.pml_thickness = 10;
+  p.with_voids = false;
+  p.output_nodes = m.surface_nodes;
+  const auto r = solver::solve_harmonic(p);
+  for (int c = 0; c < 2; ++c) {
+    const solver::PlaneWave& wave = c == 0 ? p.wave : sh.wave;
+    const solver::ComplexVector& fe = c == 0 ? r.reference.u[0] : r.reference.u_extra[0][0];
+    const solver::IncidentField exact(layers, wave, 2 * pi * 3.0, true);
+    double worst = 0, scale = 0;
+    for (std::size_t k = 0; k < r.output_nodes.size(); ++k) {
+      const auto& x = m.nodes[static_cast<std::size_t>(r.output_nodes[k])];
+      if (std::abs(x[0]) > 20 || std::abs(x[1]) > 20) continue;
+      const auto u = exact.at(x[0], x[1], 0);
+      double e2 = 0, s2 = 0;
+      for (int j = 0; j < 3; ++j) {
+        e2 += std::norm(fe[static_cast<long>(3 * k) + j] - u[static_cast<std::size_t>(j)]);
+        s2 += std::norm(u[static_cast<std::size_t>(j)]);
+      }
+      worst = std::max(worst, std::sqrt(e2));
+      scale = std::max(scale, std::sqrt(s2));
+    }
+    std::printf("3D inclined %s %.0f deg at azimuth %.0f deg, 3 Hz: surface |u| %.3f x amplitude, FE against the free field "
+                "%.2f %% (%zu dofs, %.1f s for both)\n",
+                c ? "SH" : "SV", wave.incidence * 180 / pi, wave.azimuth * 180 / pi, scale, 100 * worst / scale, r.n_dofs,
+                r.total_seconds);
+    CHECK(worst < 0.02 * scale);
+  }
 }
