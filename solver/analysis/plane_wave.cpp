@@ -1,8 +1,14 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
 #include "solver/analysis/plane_wave.hpp"
 
+#include <omp.h>
+
 #include <Eigen/Dense>
+#include <unsupported/Eigen/FFT>
+#include <algorithm>
 #include <cmath>
+#include <cstdint>
+#include <exception>
 #include <limits>
 #include <numbers>
 #include <stdexcept>
@@ -237,6 +243,201 @@ IncidentField::IncidentField(const std::vector<HarmonicLayer>& layers, const Pla
 std::array<Complex, 3> IncidentField::at(double x, double y, double depth) const {
   const auto u = wave_.displacement(x * cos_az_ + y * sin_az_, depth);
   return {u[0] * cos_az_ - u[1] * sin_az_, u[0] * sin_az_ + u[1] * cos_az_, u[2]};
+}
+
+// ---------------------------------------------------------------------------------------------
+// The pulse in time.
+
+namespace {
+
+// Weights of four-point Lagrange interpolation at s ∈ [0, 3] on the nodes 0, 1, 2, 3.
+std::array<double, 4> lagrange4(double s) {
+  return {-(s - 1) * (s - 2) * (s - 3) / 6, s * (s - 2) * (s - 3) / 2, -s * (s - 1) * (s - 3) / 2, s * (s - 1) * (s - 2) / 6};
+}
+
+// The first node of a four-point stencil around position `pos` on nodes 0 … n − 1, and the
+// position relative to it.
+std::pair<std::size_t, double> stencil(double pos, std::size_t n) {
+  const double base = std::clamp(std::floor(pos) - 1, 0.0, static_cast<double>(n - 4));
+  return {static_cast<std::size_t>(base), pos - base};
+}
+
+double unit_ricker(double peak_hz, double tau) {
+  const double a = std::numbers::pi * peak_hz * tau;
+  return (1 - 2 * a * a) * std::exp(-a * a);
+}
+
+}  // namespace
+
+PlaneWavePulse::PlaneWavePulse(const Spec& spec, double t_end, double max_depth, std::array<double, 4> xy_range)
+    : spec_(spec) {
+  if (spec.layers.empty()) throw std::invalid_argument("plane-wave pulse: no layers");
+  if (spec.kind == WaveKind::sh && !spec.three_d)
+    throw std::invalid_argument("plane-wave pulse: SH waves (motion out of the plane) need a 3D model");
+  if (!(std::abs(spec.incidence) < std::numbers::pi / 2))
+    throw std::invalid_argument("plane-wave pulse: the angle of incidence must be below 90 degrees");
+  if (!(spec.peak_hz > 0)) throw std::invalid_argument("plane-wave pulse: peak frequency must be > 0");
+  if (!(t_end > 0)) throw std::invalid_argument("plane-wave pulse: end time must be > 0");
+  if (spec.delay_s < 0) throw std::invalid_argument("plane-wave pulse: delay must be >= 0");
+  max_depth = std::max(max_depth, 0.0);
+  const double f0 = spec.peak_hz;
+  const Elastic& rock = spec.layers.back().elastic;
+  p_ = incidence_slowness(rock, spec.kind, spec.incidence);
+  cos_az_ = spec.three_d ? std::cos(spec.azimuth) : 1.0;
+  sin_az_ = spec.three_d ? std::sin(spec.azimuth) : 0.0;
+  comps_ = spec.kind == WaveKind::sh ? 1 : 2;
+
+  // Range of the delay p·h over the points.
+  double ph_lo = std::numeric_limits<double>::infinity(), ph_hi = -ph_lo;
+  for (double x : {xy_range[0], xy_range[1]})
+    for (double y : {xy_range[2], xy_range[3]}) {
+      const double ph = p_ * (x * cos_az_ + y * sin_az_);
+      ph_lo = std::min(ph_lo, ph);
+      ph_hi = std::max(ph_hi, ph);
+    }
+  const std::size_t n_layers = spec.layers.size();
+  top_.assign(n_layers, 0);
+  for (std::size_t j = 1; j < n_layers; ++j) {
+    if (!(spec.layers[j - 1].thickness > 0)) throw std::invalid_argument("plane-wave pulse: layer thickness must be > 0");
+    top_[j] = top_[j - 1] + spec.layers[j - 1].thickness;
+  }
+  // Lead of the earliest arrival over the arrival at the half-space's top on h = 0: points
+  // upstream (p h < 0) and points below that top (the incident wave is still coming up).
+  const auto [lam, mu] = lame(rock);
+  const double v_in = std::sqrt((spec.kind == WaveKind::p ? lam + 2 * mu : mu) / rock.density);
+  const double eta = std::sqrt(std::max(0.0, 1 / (v_in * v_in) - p_ * p_));
+  const double lead = std::max(0.0, -ph_lo) + std::max(0.0, max_depth - top_.back()) * eta;
+  delay_ = spec.delay_s > 0 ? spec.delay_s : 1.5 / f0 + lead;
+  earliest_ = delay_ - lead - 1.5 / f0;
+
+  // Histories over τ = t − p h ∈ [−max p h, t_end − min p h].
+  dt_ = 1 / (40 * f0);
+  tau0_ = std::min(-ph_hi, delay_ - 1.5 / f0) - 2 * dt_;
+  const double tau_hi = t_end - ph_lo + 2 * dt_;
+  n_tau_ = static_cast<std::size_t>(std::ceil((tau_hi - tau0_) / dt_)) + 1;
+  n_tau_ = std::max<std::size_t>(n_tau_, 4);
+  const double window = 8 * static_cast<double>(n_tau_) * dt_ + 30.0;
+  n_fft_ = 1024;
+  while (static_cast<double>(n_fft_) * dt_ < window) n_fft_ *= 2;
+
+  // Depth samples, uniform within each layer that the range reaches (a point on an interface
+  // belongs to the layer above, as in LayeredPlaneWave).
+  const double f_depth = 2.5 * f0;
+  for (std::size_t j = 0; j < n_layers; ++j) {
+    if (j > 0 && !(max_depth > top_[j])) break;
+    const auto [lj, mj] = lame(spec.layers[j].elastic);
+    const double dz = std::sqrt(mj / spec.layers[j].elastic.density) / f_depth / 20;
+    const double bottom = j + 1 < n_layers ? top_[j + 1] : std::numeric_limits<double>::infinity();
+    const double end = std::min(bottom, std::max(max_depth, top_[j] + 3 * dz));
+    const double len = end - top_[j];
+    const auto n_int = static_cast<std::size_t>(std::max(3.0, std::ceil(len / dz)));
+    spans_.push_back({depth_.size(), n_int + 1, top_[j], len / static_cast<double>(n_int)});
+    for (std::size_t i = 0; i <= n_int; ++i) depth_.push_back(top_[j] + len * static_cast<double>(i) / static_cast<double>(n_int));
+  }
+
+  // The sampled wavelet's spectrum.
+  Eigen::FFT<double> fft;
+  std::vector<Complex> r(n_fft_), rs(n_fft_);
+  for (std::size_t k = 0; k < n_fft_; ++k) r[k] = unit_ricker(f0, tau0_ + static_cast<double>(k) * dt_ - delay_);
+  fft.fwd(rs.data(), r.data(), static_cast<Eigen::DenseIndex>(n_fft_));
+  const double df = 1 / (static_cast<double>(n_fft_) * dt_);
+  const auto k_cut = std::min(n_fft_ / 2 - 1, static_cast<std::size_t>(std::floor(6 * f0 / df)));
+
+  // Transfer functions T[k][sample][comp] for k = 1 … k_cut (the wavelet has no content at 0 Hz
+  // and none worth keeping above 6 f0, where its spectrum is below 1e-13 of its peak).
+  const std::size_t ns = depth_.size(), nc = static_cast<std::size_t>(comps_);
+  std::vector<Complex> transfer(k_cut * ns * nc);
+  std::exception_ptr error;
+#pragma omp parallel for schedule(dynamic, 8)
+  for (std::int64_t kk = 1; kk <= static_cast<std::int64_t>(k_cut); ++kk) {
+    try {
+      const double w = 2 * std::numbers::pi * df * static_cast<double>(kk);
+      const LayeredPlaneWave wave(rayleigh_layers(spec.layers, w), spec.kind, w, p_, 1.0);
+      Complex* out = &transfer[(static_cast<std::size_t>(kk) - 1) * ns * nc];
+      for (std::size_t s = 0; s < ns; ++s) {
+        const auto u = wave.displacement(0, depth_[s]);
+        if (comps_ == 1) {
+          out[s] = u[1];
+        } else {
+          out[2 * s] = u[0];
+          out[2 * s + 1] = u[2];
+        }
+      }
+    } catch (...) {
+#pragma omp critical(voidsign_pulse_error)
+      if (!error) error = std::current_exception();
+    }
+  }
+  if (error) std::rethrow_exception(error);
+
+  // Histories: amplitude × inverse FFT of R T (and of iω R T for the velocity).
+  u_.assign(ns * nc * n_tau_, 0.0);
+  v_.assign(u_.size(), 0.0);
+#pragma omp parallel
+  {
+    Eigen::FFT<double> local;
+    std::vector<Complex> y(n_fft_), x(n_fft_);
+#pragma omp for schedule(dynamic, 1)
+    for (std::int64_t q = 0; q < static_cast<std::int64_t>(ns * nc); ++q) {
+      const auto s = static_cast<std::size_t>(q) / nc, c = static_cast<std::size_t>(q) % nc;
+      for (int velocity = 0; velocity < 2; ++velocity) {
+        std::fill(y.begin(), y.end(), Complex(0.0));
+        for (std::size_t k = 1; k <= k_cut; ++k) {
+          Complex val = rs[k] * transfer[(k - 1) * ns * nc + s * nc + c];
+          if (velocity) val *= Complex(0.0, 2 * std::numbers::pi * df * static_cast<double>(k));
+          y[k] = val;
+          y[n_fft_ - k] = std::conj(val);
+        }
+        local.inv(x.data(), y.data(), static_cast<Eigen::DenseIndex>(n_fft_));
+        double* dst = &(velocity ? v_ : u_)[static_cast<std::size_t>(q) * n_tau_];
+        for (std::size_t k = 0; k < n_tau_; ++k) dst[k] = spec.amplitude * x[k].real();
+      }
+    }
+  }
+}
+
+double PlaneWavePulse::bytes() const { return 8.0 * static_cast<double>(u_.size() + v_.size()); }
+
+void PlaneWavePulse::at(double x, double y, double depth, double t, double* u, double* v) const {
+  const int d = spec_.three_d ? 3 : 2;
+  const double h = x * cos_az_ + y * sin_az_;
+  const double pos_t = (t - p_ * h - tau0_) / dt_;
+  double uc[2] = {0, 0}, vc[2] = {0, 0};
+  if (pos_t >= 0 && pos_t <= static_cast<double>(n_tau_ - 1)) {
+    std::size_t j = 0;
+    while (j + 1 < spans_.size() && depth > top_[j + 1]) ++j;
+    const Span& sp = spans_[j];
+    const auto [bz, sz] = stencil((depth - sp.top) / sp.step, sp.count);
+    const auto [bt, st] = stencil(pos_t, n_tau_);
+    const auto wz = lagrange4(sz), wt = lagrange4(st);
+    for (int c = 0; c < comps_; ++c)
+      for (std::size_t a = 0; a < 4; ++a) {
+        const std::size_t row = ((sp.first + bz + a) * static_cast<std::size_t>(comps_) + static_cast<std::size_t>(c)) * n_tau_ + bt;
+        double su = 0, sv = 0;
+        for (std::size_t b = 0; b < 4; ++b) {
+          su += wt[b] * u_[row + b];
+          sv += wt[b] * v_[row + b];
+        }
+        uc[c] += wz[a] * su;
+        vc[c] += wz[a] * sv;
+      }
+  }
+  // (h, z) or t to model axes.
+  double ux, uy, uz, vx, vy, vz;
+  if (comps_ == 1) {
+    ux = -uc[0] * sin_az_, uy = uc[0] * cos_az_, uz = 0;
+    vx = -vc[0] * sin_az_, vy = vc[0] * cos_az_, vz = 0;
+  } else {
+    ux = uc[0] * cos_az_, uy = uc[0] * sin_az_, uz = uc[1];
+    vx = vc[0] * cos_az_, vy = vc[0] * sin_az_, vz = vc[1];
+  }
+  if (d == 3) {
+    u[0] = ux, u[1] = uy, u[2] = uz;
+    v[0] = vx, v[1] = vy, v[2] = vz;
+  } else {
+    u[0] = ux, u[1] = uz;
+    v[0] = vx, v[1] = vz;
+  }
 }
 
 }  // namespace voidsign::solver

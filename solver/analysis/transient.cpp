@@ -13,6 +13,7 @@
 #include <stdexcept>
 #include <string>
 
+#include "solver/analysis/drm.hpp"
 #include "solver/fe/mass.hpp"
 
 namespace voidsign::solver {
@@ -51,15 +52,27 @@ void check_problem(const TransientProblem& p) {
   if (p.receiver_every < 1) throw std::invalid_argument("transient: receiver_every must be >= 1");
   for (int r : p.receivers)
     if (r < 0 || static_cast<std::size_t>(r) >= m.n_nodes()) throw std::invalid_argument("transient: receiver node out of range");
-  if (!(p.source.wavelet.peak_hz > 0)) throw std::invalid_argument("transient: Ricker peak frequency must be > 0");
+  if (p.wave) {
+    if (p.kinematics == Kinematics::axisymmetric)
+      throw std::invalid_argument("transient: plane waves need a plane-strain or 3D model");
+    if (!(p.wave->peak_hz > 0)) throw std::invalid_argument("transient: the plane wave's peak frequency must be > 0");
+    if (!(p.wave->wave.amplitude > 0)) throw std::invalid_argument("transient: the plane wave's amplitude must be > 0");
+    if (p.wave->delay_s < 0) throw std::invalid_argument("transient: the plane wave's delay must be >= 0");
+    if (p.boundary != OuterBoundary::absorbing)
+      throw std::invalid_argument("transient: plane waves need the absorbing outer boundary");
+  } else if (!(p.source.wavelet.peak_hz > 0)) {
+    throw std::invalid_argument("transient: Ricker peak frequency must be > 0");
+  }
 }
+
+double peak_frequency(const TransientProblem& p) { return p.wave ? p.wave->peak_hz : p.source.wavelet.peak_hz; }
 
 std::vector<RayleighDamping> layer_damping(const TransientProblem& p) {
   std::vector<RayleighDamping> out(p.layers.size());
   double f1 = p.damping_f1_hz, f2 = p.damping_f2_hz;
   if (f1 == 0 && f2 == 0) {
-    f1 = p.source.wavelet.peak_hz / 3;
-    f2 = p.source.wavelet.peak_hz * 3;
+    f1 = peak_frequency(p) / 3;
+    f2 = peak_frequency(p) * 3;
   }
   for (std::size_t l = 0; l < p.layers.size(); ++l)
     if (p.layers[l].damping > 0) out[l] = fit_rayleigh(p.layers[l].damping, f1, f2);
@@ -302,6 +315,8 @@ ExplicitModel::ExplicitModel(const TransientProblem& p, bool voided, double dt) 
     }
   }
 
+  if (p.wave) build_drm(p, damping);
+
   // Step coefficients: v⁺ = a v⁻ − b (K w − f), a = (m/Δt − D/2)/(m/Δt + D/2), b = 1/(m/Δt + D/2).
   mass_.resize(n);
   a_.resize(n);
@@ -317,6 +332,63 @@ ExplicitModel::ExplicitModel(const TransientProblem& p, bool voided, double dt) 
   setup_seconds_ = seconds_since(t0);
 }
 
+void ExplicitModel::build_drm(const TransientProblem& p, const std::vector<RayleighDamping>& damping) {
+  const auto& m = *p.mesh;
+  std::vector<double> thickness;
+  for (const auto& l : p.layers) thickness.push_back(l.thickness);
+  DrmLayer layer = drm_layer(m, p.wave->box, {m.x_min, m.x_max, m.y_min, m.y_max, m.z_min}, {}, thickness, "transient");
+  inside_ = std::move(layer.inside);
+  drm_box_ = layer.box;
+  drm_cells_ = layer.cells.size();
+  std::vector<char> outer(m.n_nodes(), 0);
+  const int nf = mesh::nodes_per_facet(m.type);
+  for (const auto& f : m.facets)
+    if (is_outer(f.kind))
+      for (int a = 0; a < nf; ++a) outer[static_cast<std::size_t>(f.nodes[a])] = 1;
+  const int d = d_;
+  const int nd = m.npc() * d;
+  std::vector<double> ke(static_cast<std::size_t>(nd * nd));
+  std::vector<int> slot(m.n_nodes(), -1), row_of(free_.size(), -1);
+  std::vector<Eigen::Triplet<double, int>> tk, tb;
+  for (const DrmLayer::Cell& lc : layer.cells) {
+    const int* v = m.cell(lc.cell);
+    for (int a = 0; a < m.npc(); ++a)
+      if (outer[static_cast<std::size_t>(v[a])])
+        throw std::invalid_argument("transient: the DRM box reaches the block's outer faces (its layer of cells touches the "
+                                    "dashpots): make the box smaller or the block larger");
+    const auto lj = static_cast<std::size_t>(m.layer[lc.cell]);
+    stiffness(m, lc.cell, p.layers[lj].elastic, p.kinematics, ke);
+    const double beta = damping[lj].beta;
+    for (int r = 0; r < nd; ++r) {
+      const bool rb = lc.on_boundary[static_cast<std::size_t>(r / d)];
+      const int rr = reduced_[static_cast<std::size_t>(d * v[r / d] + r % d)];
+      if (rr < 0) continue;
+      int& row = row_of[static_cast<std::size_t>(rr)];
+      if (row < 0) {
+        row = static_cast<int>(drm_rows_.size());
+        drm_rows_.push_back(rr);
+      }
+      for (int c = 0; c < nd; ++c) {
+        if (lc.on_boundary[static_cast<std::size_t>(c / d)] == rb) continue;
+        int& sl = slot[static_cast<std::size_t>(v[c / d])];
+        if (sl < 0) {
+          sl = static_cast<int>(drm_nodes_.size());
+          drm_nodes_.push_back(v[c / d]);
+        }
+        // f_b = −K_be (u⁰_e + β v⁰_e), f_e = +K_eb (u⁰_b + β v⁰_b).
+        const double val = (rb ? -1.0 : 1.0) * ke[static_cast<std::size_t>(r * nd + c)];
+        tk.emplace_back(row, d * sl + c % d, val);
+        if (beta != 0) tb.emplace_back(row, d * sl + c % d, beta * val);
+      }
+    }
+  }
+  const auto rows = static_cast<int>(drm_rows_.size()), cols = d * static_cast<int>(drm_nodes_.size());
+  drm_k_.resize(rows, cols);
+  drm_k_.setFromTriplets(tk.begin(), tk.end());
+  drm_beta_.resize(rows, cols);
+  drm_beta_.setFromTriplets(tb.begin(), tb.end());
+}
+
 void ExplicitModel::multiply(std::span<const double> x, std::span<double> y) const {
   const auto n = static_cast<std::int64_t>(free_.size());
   const std::int64_t* row = row_.data();
@@ -330,7 +402,8 @@ void ExplicitModel::multiply(std::span<const double> x, std::span<double> y) con
   }
 }
 
-TransientTraces ExplicitModel::run(int n_steps, int source_node, const TransientCallbacks& cb) const {
+TransientTraces ExplicitModel::run(int n_steps, int source_node, const TransientCallbacks& cb,
+                                   const PlaneWavePulse* pulse) const {
   const auto& p = *p_;
   const std::size_t n = free_.size();
   const auto nr = p.receivers.size();
@@ -377,6 +450,21 @@ TransientTraces ExplicitModel::run(int n_steps, int source_node, const Transient
   const auto ni = static_cast<std::int64_t>(n);
   const int progress_every = std::max(1, n_steps / 100);
 
+  // Plane wave: free field at the DRM nodes, the effective forces, and the receivers outside the
+  // box (their recorded motion is the scattered field plus the free field).
+  const auto& mesh = *p.mesh;
+  if (pulse && drm_nodes_.empty()) throw std::invalid_argument("transient: a plane-wave pulse for a model without a DRM layer");
+  const auto n_drm = static_cast<Eigen::Index>(d * drm_nodes_.size());
+  Eigen::VectorXd gu = Eigen::VectorXd::Zero(n_drm), gv = Eigen::VectorXd::Zero(n_drm), fd(drm_k_.rows());
+  std::vector<std::size_t> rec_outside;
+  if (pulse)
+    for (std::size_t r = 0; r < nr; ++r)
+      if (!inside_[static_cast<std::size_t>(p.receivers[r])]) rec_outside.push_back(r);
+  auto free_field = [&](int node, double t, double* u_out, double* v_out) {
+    const auto& x = mesh.nodes[static_cast<std::size_t>(node)];
+    pulse->at(x[0], x[1], mesh.z_max - x[2], t, u_out, v_out);
+  };
+
   const auto t0 = std::chrono::steady_clock::now();
   for (int step = 0; step < n_steps; ++step) {
     const double t = step * dt_;
@@ -386,9 +474,22 @@ TransientTraces ExplicitModel::run(int n_steps, int source_node, const Transient
       out.time_s[s] = t;
       for (std::size_t q = 0; q < rec.size(); ++q)
         if (rec[q] >= 0) out.u[s * nr * d + q] = u[rec[q]];
+      for (std::size_t r : rec_outside) {
+        double uf[3], vf[3];
+        free_field(p.receivers[r], t, uf, vf);
+        for (std::size_t j = 0; j < d; ++j) out.u[(s * nr + r) * d + j] += uf[j];
+      }
     }
     if (!snap.empty() && step % cb.snapshot_every == 0) {
+      std::fill(snap.begin(), snap.end(), 0.0);
       for (std::size_t i = 0; i < n; ++i) snap[static_cast<std::size_t>(free_[i])] = u[i];
+      if (pulse)
+        for (std::size_t node = 0; node < mesh.n_nodes(); ++node)
+          if (!inside_[node]) {
+            double uf[3], vf[3];
+            free_field(static_cast<int>(node), t, uf, vf);
+            for (std::size_t j = 0; j < d; ++j) snap[node * d + j] += uf[j];
+          }
       cb.snapshot(step, t, snap);
     }
     const double* wp = u;
@@ -403,7 +504,23 @@ TransientTraces ExplicitModel::run(int n_steps, int source_node, const Transient
                       vn);
     else
       step_rows<false>(ni, row_.data(), col_.data(), val_.data(), nullptr, wp, u, v, a_.data(), b_.data(), dt_, un, vn);
-    const double f = p.source.wavelet(t);
+    if (pulse) {
+      // u⁰ at t_n; v⁰ at t_n − Δt/2, where the scheme takes the velocity of its damping term.
+      double tmp[3];
+      for (std::size_t k = 0; k < drm_nodes_.size(); ++k) {
+        free_field(drm_nodes_[k], t, &gu[static_cast<Eigen::Index>(k * d)], tmp);
+        free_field(drm_nodes_[k], t - 0.5 * dt_, tmp, &gv[static_cast<Eigen::Index>(k * d)]);
+      }
+      fd.noalias() = drm_k_ * gu;
+      if (drm_beta_.nonZeros() > 0) fd.noalias() += drm_beta_ * gv;
+      for (Eigen::Index k = 0; k < fd.size(); ++k) {
+        const auto i = static_cast<std::size_t>(drm_rows_[static_cast<std::size_t>(k)]);
+        const double g = b_[i] * fd[k];
+        vn[i] += g;
+        un[i] += dt_ * g;
+      }
+    }
+    const double f = pulse ? 0.0 : p.source.wavelet(t);
     for (std::size_t j = 0; j < d; ++j)
       if (src[j] >= 0) {
         const double g = b_[static_cast<std::size_t>(src[j])] * f * dir[j];
@@ -532,10 +649,38 @@ TransientResult solve_transient(const TransientProblem& p, const TransientCallba
   const ExplicitModel ref(p, false, r.time_step_s);
   std::optional<ExplicitModel> vd;
   if (p.with_voids) vd.emplace(p, true, r.time_step_s);
+  const auto& m = *p.mesh;
+
+  if (p.wave) {
+    const auto t_wave = std::chrono::steady_clock::now();
+    PlaneWavePulse::Spec spec;
+    for (std::size_t l = 0; l < p.layers.size(); ++l)
+      spec.layers.push_back({p.layers[l].elastic, r.damping[l].alpha, r.damping[l].beta, p.layers[l].thickness});
+    spec.kind = wave_kind(p.wave->wave);
+    spec.incidence = p.wave->wave.incidence;
+    spec.azimuth = p.wave->wave.azimuth;
+    spec.three_d = m.dim() == 3;
+    spec.amplitude = p.wave->wave.amplitude;
+    spec.peak_hz = p.wave->peak_hz;
+    spec.delay_s = p.wave->delay_s;
+    const PlaneWavePulse pulse(spec, r.n_steps * r.time_step_s, m.z_max - m.z_min, {m.x_min, m.x_max, m.y_min, m.y_max});
+    r.wave_delay_s = pulse.delay();
+    r.wave_earliest_s = pulse.earliest_arrival();
+    r.wave_bytes = pulse.bytes();
+    r.wave_seconds = seconds_since(t_wave);
+    r.drm_box = ref.drm_box();
+    r.drm_cells = ref.drm_cells();
+    r.reference = ref.run(r.n_steps, -1, callbacks, &pulse);
+    if (vd) {
+      r.voided = vd->run(r.n_steps, -1, callbacks, &pulse);
+      r.difference.resize(r.reference.u.size());
+      for (std::size_t i = 0; i < r.difference.size(); ++i) r.difference[i] = r.voided.u[i] - r.reference.u[i];
+    }
+    return r;
+  }
 
   // The source node: nearest to the point among those whose dofs along the force are free in
   // both models (on the axis of an axisymmetric model u_r is held, u_z free).
-  const auto& m = *p.mesh;
   const std::size_t d = static_cast<std::size_t>(dofs_per_node(p.kinematics));
   const auto& sd = p.source.direction;
   const std::array<double, 3> comp = d == 3 ? sd : std::array<double, 3>{sd[0], sd[2], 0.0};

@@ -26,11 +26,14 @@
 #include <cstddef>
 #include <cstdint>
 #include <functional>
+#include <optional>
 #include <span>
 #include <string_view>
 #include <vector>
 
 #include "mesh/core/mesh.hpp"
+#include "solver/analysis/harmonic.hpp"
+#include "solver/analysis/plane_wave.hpp"
 #include "solver/analysis/static.hpp"
 #include "solver/assembly/system.hpp"
 #include "solver/fe/element.hpp"
@@ -40,7 +43,8 @@ namespace voidsign::solver {
 /// One material of the transient model, indexed by mesh.layer.
 struct TransientLayer {
   Elastic elastic;
-  double damping = 0;  ///< damping ratio ξ [-] (0.02 = 2 %), matched at both ends of the band
+  double damping = 0;    ///< damping ratio ξ [-] (0.02 = 2 %), matched at both ends of the band
+  double thickness = 0;  ///< m, top down (the plane wave's free field); ignored for the last layer
 };
 
 /// Rayleigh coefficients ξ(ω) = α/(2ω) + βω/2 through ξ at ω₁ and ω₂ = 2π f₁, 2π f₂:
@@ -70,6 +74,19 @@ struct TransientSource {
   Ricker wavelet;
 };
 
+/// A plane-wave pulse entering from the half-space below the last layer, brought in by the domain
+/// reduction method (solver/analysis/drm.hpp) on the layer of cells outside the DRM box: twice the
+/// incident displacement at the top of the half-space (on x = y = 0) is amplitude × the unit
+/// Ricker wavelet; the free field is solver::PlaneWavePulse with the model's Rayleigh damping.
+/// Inside the box the model carries the total field, outside it the scattered field (the
+/// dashpots absorb that); recorded traces and snapshots get the free field added back outside.
+struct TransientWave {
+  PlaneWave wave;         ///< type, polarization, incidence, azimuth; amplitude [m]
+  double peak_hz = 5;     ///< the wavelet's peak frequency [Hz]
+  double delay_s = 0;     ///< the peak's time at the half-space's top on x = y = 0 [s]; 0 = chosen
+  DrmBox box;             ///< zero entries: chosen (drm_layer), limited by the block's faces
+};
+
 /// What holds the sides and bottom (front and back in 3D). The ground surface is always free.
 enum class OuterBoundary {
   absorbing,  ///< Lysmer–Kuhlemeyer dashpots: ρV_p normal, ρV_s tangential
@@ -82,13 +99,14 @@ struct TransientProblem {
   Kinematics kinematics = Kinematics::plane_strain;
   std::vector<TransientLayer> layers;  ///< indexed by mesh.layer
   TransientSource source;
+  std::optional<TransientWave> wave;  ///< instead of the source, when set
   OuterBoundary boundary = OuterBoundary::absorbing;
 
   double duration_s = 1;  ///< simulated time [s]; n_steps = ceil(duration / Δt)
   double time_step_s = 0; ///< Δt [s]; 0 = safety · stable_time_step
   double safety = 0.9;    ///< fraction of the stable step used when time_step_s = 0
   /// Band over which each layer's damping ratio is matched (fit_rayleigh); ignored when every
-  /// layer has ξ = 0. Both 0 = [f/3, 3f] around the source's peak frequency f.
+  /// layer has ξ = 0. Both 0 = [f/3, 3f] around the source's (or the wave's) peak frequency f.
   double damping_f1_hz = 0, damping_f2_hz = 0;
 
   std::vector<int> receivers;  ///< nodes whose displacements are recorded
@@ -139,6 +157,13 @@ struct TransientResult {
   int source_node = -1;
   double source_offset_m = 0;   ///< distance of source_node from the requested point
   std::vector<RayleighDamping> damping;      ///< per layer
+  // Plane wave only:
+  DrmBox drm_box;               ///< as used
+  std::size_t drm_cells = 0;    ///< cells in the DRM layer
+  double wave_delay_s = 0;      ///< the pulse's delay as used
+  double wave_earliest_s = 0;   ///< earliest time the pulse reaches a node of the model [s]
+  double wave_bytes = 0;        ///< memory of the free-field histories
+  double wave_seconds = 0;      ///< time to synthesise them
 };
 
 /// Runs both models over the same steps. Throws std::invalid_argument for inconsistent input
@@ -153,9 +178,11 @@ class ExplicitModel {
   /// voided: void cells inactive. dt: the time step [s] (> 0).
   ExplicitModel(const TransientProblem& p, bool voided, double dt);
 
-  /// Runs n_steps steps from rest with the problem's source at node source_node, recording as
-  /// TransientTraces says. No allocation inside the loop.
-  TransientTraces run(int n_steps, int source_node, const TransientCallbacks& callbacks) const;
+  /// Runs n_steps steps from rest with the problem's source at node source_node (or, with a
+  /// plane wave, its free field `pulse`), recording as TransientTraces says. No allocation
+  /// inside the loop.
+  TransientTraces run(int n_steps, int source_node, const TransientCallbacks& callbacks,
+                      const PlaneWavePulse* pulse = nullptr) const;
 
   std::size_t n_free() const { return free_.size(); }
   std::size_t n_nonzeros() const { return col_.size(); }
@@ -170,8 +197,15 @@ class ExplicitModel {
   const std::vector<int>& columns() const { return col_; }
   const std::vector<double>& values() const { return val_; }
   double setup_seconds() const { return setup_seconds_; }
+  /// Plane wave: the DRM box as used and the cells of its layer.
+  const DrmBox& drm_box() const { return drm_box_; }
+  std::size_t drm_cells() const { return drm_cells_; }
+  /// Per node: inside the DRM box (plane wave; empty otherwise).
+  const std::vector<char>& drm_inside() const { return inside_; }
 
  private:
+  void build_drm(const TransientProblem& p, const std::vector<RayleighDamping>& damping);
+
   const TransientProblem* p_;
   double dt_;
   bool voided_;
@@ -186,6 +220,14 @@ class ExplicitModel {
   double beta_ = 0;             // uniform β
   std::vector<double> mass_, a_, b_;
   double setup_seconds_ = 0;
+  // The DRM (plane wave): its nodes and the effective-force operators f = G u⁰ + G_β v⁰ over the
+  // reduced rows, columns d · (index in drm_nodes_) + j.
+  std::vector<int> drm_nodes_;
+  std::vector<char> inside_;  // per node: inside the DRM box
+  Eigen::SparseMatrix<double, Eigen::RowMajor, int> drm_k_, drm_beta_;
+  std::vector<int> drm_rows_;  // reduced row of each row of the operators
+  DrmBox drm_box_;
+  std::size_t drm_cells_ = 0;
 };
 
 /// The stable step of one model: ω̂ ≥ ω_max from the element eigenvalue inequality

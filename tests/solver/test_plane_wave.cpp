@@ -149,3 +149,147 @@ TEST_CASE("inclined plane wave: displacement and traction continuous at the inte
   CHECK(std::isfinite(std::abs(post.displacement(0, 0)[0])));
   CHECK(std::abs(post.displacement(0, 0)[0]) < 10);
 }
+
+namespace {
+
+std::vector<solver::RayleighLayer> rayleigh(const std::vector<solver::HarmonicLayer>& layers, double alpha, double beta) {
+  std::vector<solver::RayleighLayer> out;
+  for (const auto& l : layers) out.push_back({l.elastic, alpha, beta, l.thickness});
+  return out;
+}
+
+double unit_ricker(double f0, double tau) {
+  const double a = pi * f0 * tau;
+  return (1 - 2 * a * a) * std::exp(-a * a);
+}
+
+}  // namespace
+
+TEST_CASE("plane-wave pulse: a homogeneous half-space gives the incident and reflected pulses exactly") {
+  // Undamped rock, so every reflection coefficient is real and frequency independent: the field is
+  // Σ A d r(t − delay − p h − s_z z) over the incident, PP and PS waves (z up, the surface z = 0).
+  const solver::HarmonicLayer rock = layer(800, 0.25, 2400, 0.0, 0);
+  const double alpha = speed(rock, true), beta = speed(rock, false);
+  for (const auto kind : {WaveKind::sv, WaveKind::p}) {
+    solver::PlaneWavePulse::Spec spec;
+    spec.layers = rayleigh({rock}, 0, 0);
+    spec.kind = kind;
+    spec.incidence = (kind == WaveKind::p ? 25 : -15) * pi / 180;
+    spec.amplitude = 2e-3;
+    spec.peak_hz = 6;
+    const solver::PlaneWavePulse pulse(spec, 1.0, 120, {-150, 150, 0, 0});
+    const double p = solver::incidence_slowness(rock.elastic, kind, spec.incidence);
+    const solver::LayeredPlaneWave harmonic(solver::hysteretic_layers({rock}), kind, 2 * pi * 6, p, 1.0);
+    const auto r = harmonic.reflected();
+    CHECK(std::abs(r[0].imag()) < 1e-12);
+    CHECK(std::abs(r[1].imag()) < 1e-12);
+    const double ep = std::sqrt(1 / (alpha * alpha) - p * p), es = std::sqrt(1 / (beta * beta) - p * p);
+    const double a = spec.amplitude / 2;
+    double worst = 0;
+    for (double x : {-140.0, -30.0, 0.0, 55.0, 140.0})
+      for (double depth : {0.0, 13.7, 61.0, 119.0})
+        for (double t = 0; t <= 1.0; t += 0.0173) {
+          const double z = -depth, tau = t - pulse.delay() - p * x;
+          double uh = 0, uz = 0;
+          auto add = [&](double amp, double dh, double dz, double sz) {
+            const double w = amp * a * unit_ricker(6, tau - sz * z);
+            uh += w * dh;
+            uz += w * dz;
+          };
+          if (kind == WaveKind::p) {
+            add(1.0, alpha * p, alpha * ep, ep);
+          } else {
+            add(1.0, beta * es, -beta * p, es);
+          }
+          add(r[0].real(), alpha * p, -alpha * ep, -ep);
+          add(r[1].real(), beta * es, beta * p, -es);
+          double u[2], v[2];
+          pulse.at(x, 0, depth, t, u, v);
+          worst = std::max(worst, std::hypot(u[0] - uh, u[1] - uz));
+        }
+    std::printf("pulse in a half-space (%s): worst error %.2e of the amplitude; %zu depth samples, FFT of %zu, delay %.3f s\n",
+                kind == WaveKind::p ? "P 25 deg" : "SV -15 deg", worst / spec.amplitude, pulse.depth_samples(),
+                pulse.fft_length(), pulse.delay());
+    CHECK(worst < 2e-4 * spec.amplitude);
+    CHECK(pulse.earliest_arrival() == doctest::Approx(0).epsilon(1e-9));
+  }
+}
+
+TEST_CASE("plane-wave pulse: damped layers against a direct Fourier integral of the exact transfer function") {
+  // u(t) = (1/π) ∫₀^∞ Re[r̂(ω) T(ω) e^{iω(t − p h)}] dω with the Ricker's closed-form transform
+  // r̂(ω) = ω² e^{−ω²/ω₀²} e^{−iωt_d} / (2π² f₀² · √π f₀), ω₀ = 2π f₀ (from r = −g''/(2a) for
+  // the Gaussian g = e^{−a t²}, a = π² f₀²): an independent check of the windowing, the FFT and
+  // the interpolation in depth and time.
+  const auto layers = rayleigh(three_layers, 0.8, 6e-4);
+  solver::PlaneWavePulse::Spec spec;
+  spec.layers = layers;
+  spec.kind = WaveKind::sv;
+  spec.incidence = 30 * pi / 180;
+  spec.three_d = true;
+  spec.azimuth = 50 * pi / 180;
+  spec.amplitude = 1.0;
+  spec.peak_hz = 5;
+  const solver::PlaneWavePulse pulse(spec, 2.0, 40, {-60, 60, -60, 60});
+  const double p = solver::incidence_slowness(three_layers.back().elastic, WaveKind::sv, spec.incidence);
+  const double f0 = spec.peak_hz, w0 = 2 * pi * f0;
+  struct Point {
+    double x, y, depth;
+  };
+  const std::vector<Point> points = {{0, 0, 0}, {-47, 12, 3.3}, {20, -35, 9.1}, {55, 51, 27.4}};
+  const std::vector<double> times = {0.35, 0.52, 0.71, 0.9, 1.3, 1.8};
+  const double dw = 2 * pi * 0.005;
+  std::vector<std::array<double, 3>> direct(points.size() * times.size(), {0, 0, 0});
+  for (double w = dw; w < 6 * w0; w += dw) {
+    const solver::LayeredPlaneWave wave(solver::rayleigh_layers(layers, w), WaveKind::sv, w, p, 1.0);
+    const double mag = w * w * std::exp(-w * w / (w0 * w0)) / (2 * pi * pi * f0 * f0 * std::sqrt(pi) * f0);
+    for (std::size_t i = 0; i < points.size(); ++i) {
+      const double h = points[i].x * std::cos(spec.azimuth) + points[i].y * std::sin(spec.azimuth);
+      const auto u = wave.displacement(0, points[i].depth);
+      for (std::size_t k = 0; k < times.size(); ++k) {
+        const Complex e = mag * std::exp(Complex(0, w * (times[k] - pulse.delay() - p * h)));
+        const double uh = (u[0] * e).real(), uz = (u[2] * e).real();
+        auto& out = direct[i * times.size() + k];
+        out[0] += dw / pi * uh * std::cos(spec.azimuth);
+        out[1] += dw / pi * uh * std::sin(spec.azimuth);
+        out[2] += dw / pi * uz;
+      }
+    }
+  }
+  double worst = 0, peak = 0;
+  for (std::size_t i = 0; i < points.size(); ++i)
+    for (std::size_t k = 0; k < times.size(); ++k) {
+      double u[3], v[3];
+      pulse.at(points[i].x, points[i].y, points[i].depth, times[k], u, v);
+      const auto& ref = direct[i * times.size() + k];
+      worst = std::max(worst, std::hypot(u[0] - ref[0], u[1] - ref[1], u[2] - ref[2]));
+      peak = std::max(peak, std::hypot(ref[0], ref[1], ref[2]));
+    }
+  std::printf("pulse in damped layers (SV 30 deg, azimuth 50 deg): worst %.2e against a peak of %.3f (direct integral)\n", worst,
+              peak);
+  CHECK(peak > 0.3);
+  CHECK(worst < 1e-3 * peak);
+}
+
+TEST_CASE("plane-wave pulse: the velocity is the time derivative of the displacement") {
+  solver::PlaneWavePulse::Spec spec;
+  spec.layers = rayleigh(three_layers, 0.5, 4e-4);
+  spec.kind = WaveKind::p;
+  spec.incidence = -20 * pi / 180;
+  spec.amplitude = 1e-3;
+  spec.peak_hz = 4;
+  const solver::PlaneWavePulse pulse(spec, 1.5, 30, {-50, 50, 0, 0});
+  const double dt = 1e-4;
+  double worst = 0, peak = 0;
+  for (double t = 0.2; t < 1.4; t += 0.037) {
+    double u0[2], u1[2], v[2], dummy[2];
+    pulse.at(12, 0, 7.5, t - dt, u0, dummy);
+    pulse.at(12, 0, 7.5, t + dt, u1, dummy);
+    pulse.at(12, 0, 7.5, t, dummy, v);
+    for (int c = 0; c < 2; ++c) {
+      worst = std::max(worst, std::abs((u1[c] - u0[c]) / (2 * dt) - v[c]));
+      peak = std::max(peak, std::abs(v[c]));
+    }
+  }
+  CHECK(peak > 0);
+  CHECK(worst < 5e-3 * peak);
+}

@@ -499,3 +499,109 @@ TEST_CASE("transient Lamb's problem in 3D: vertical surface motion against Peker
     CHECK(coarse[k] / fine[k] > 2);  // converging (measured 2.7–3.6)
   }
 }
+
+namespace {
+
+constexpr double deg = std::numbers::pi / 180;
+
+solver::TransientLayer layer_vs(double v_s, double poisson, double density, double xi, double thickness) {
+  const double g = density * v_s * v_s;
+  return {{2 * g * (1 + poisson), poisson, density}, xi, thickness};
+}
+
+}  // namespace
+
+TEST_CASE("transient plane-wave pulse: the FE surface motion follows the layered free field (vertical and inclined)") {
+  // No voids: wherever the DRM works, the surface moves with the free field of
+  // solver::PlaneWavePulse (itself checked against closed forms in test_plane_wave.cpp); a soft
+  // damped layer on rock, tri6 with 2 m cells (10 per S wavelength at 2.5 f0).
+  mesh::Mesh m = block(-120, 120, -60, 2);
+  for (std::size_t c = 0; c < m.n_cells(); ++c) {
+    double zc = 0;
+    for (int a = 0; a < 3; ++a) zc += m.nodes[static_cast<std::size_t>(m.cell(c)[a])][2] / 3;
+    m.layer[c] = zc > -10 ? 0 : 1;
+  }
+  struct Case {
+    solver::IncidentWave type;
+    double degrees;
+  };
+  for (const Case c : {Case{solver::IncidentWave::s, 0}, Case{solver::IncidentWave::p, 20}, Case{solver::IncidentWave::s, -25}}) {
+    solver::TransientProblem p;
+    p.mesh = &m;
+    p.layers = {layer_vs(150, 0.3, 1800, 0.02, 10), layer_vs(400, 0.25, 2200, 0.01, 0)};
+    solver::TransientWave w;
+    w.wave.type = c.type;
+    w.wave.incidence = c.degrees * deg;
+    w.wave.amplitude = 1e-3;
+    w.peak_hz = 3;
+    p.wave = w;
+    p.duration_s = 1.6;
+    p.with_voids = false;
+    for (int n : m.surface_nodes)
+      if (std::abs(m.nodes[static_cast<std::size_t>(n)][0]) <= 90) p.receivers.push_back(n);
+    const auto r = solver::solve_transient(p);
+    // The same free field the solver used (its delay), evaluated at the receivers.
+    solver::PlaneWavePulse::Spec spec;
+    for (std::size_t l = 0; l < p.layers.size(); ++l)
+      spec.layers.push_back({p.layers[l].elastic, r.damping[l].alpha, r.damping[l].beta, p.layers[l].thickness});
+    spec.kind = c.type == solver::IncidentWave::p ? solver::WaveKind::p : solver::WaveKind::sv;
+    spec.incidence = w.wave.incidence;
+    spec.amplitude = w.wave.amplitude;
+    spec.peak_hz = w.peak_hz;
+    spec.delay_s = r.wave_delay_s;
+    const solver::PlaneWavePulse exact(spec, p.duration_s + 0.1, 60, {-120, 120, 0, 0});
+    const std::size_t nr = p.receivers.size();
+    double worst = 0, peak = 0;
+    for (std::size_t s = 0; s < r.reference.time_s.size(); ++s)
+      for (std::size_t q = 0; q < nr; ++q) {
+        double u[2], v[2];
+        exact.at(m.nodes[static_cast<std::size_t>(p.receivers[q])][0], 0, 0, r.reference.time_s[s], u, v);
+        const double* fe = &r.reference.u[(s * nr + q) * 2];
+        worst = std::max(worst, std::hypot(fe[0] - u[0], fe[1] - u[1]));
+        peak = std::max(peak, std::hypot(u[0], u[1]));
+      }
+    std::printf("transient plane wave %s %+.0f deg: surface peak %.3f x amplitude, FE against the free field %.2f %% of it "
+                "(%d steps, delay %.3f s, %zu DRM cells, free field %.2f s / %.1f MB)\n",
+                c.type == solver::IncidentWave::p ? "P" : "SV", c.degrees, peak / w.wave.amplitude, 100 * worst / peak, r.n_steps,
+                r.wave_delay_s, r.drm_cells, r.wave_seconds, r.wave_bytes / 1e6);
+    CHECK(r.drm_cells > 0);
+    CHECK(peak > 0.5 * w.wave.amplitude);
+    CHECK(worst < 0.03 * peak);
+  }
+}
+
+TEST_CASE("transient plane-wave pulse over a void: zero anomaly when host-filled, finite and after the wave arrives") {
+  for (bool filled : {true, false}) {
+    const auto m = void_mesh(filled);
+    solver::TransientProblem p;
+    p.mesh = &m;
+    p.layers = {layer_vs(100, 0.25, 2000, 0.02, 0)};
+    solver::TransientWave w;
+    w.wave.type = solver::IncidentWave::s;
+    w.wave.incidence = 15 * deg;
+    w.wave.amplitude = 1e-3;
+    w.peak_hz = 6;
+    p.wave = w;
+    p.duration_s = 0.7;
+    p.receivers = m.surface_nodes;
+    const auto r = solver::solve_transient(p);
+    const double diff = max_abs(r.difference), scale = max_abs(r.reference.u);
+    // Before the pulse can reach the void's crown (its start, 1.5 / f before the peak, at the
+    // void's depth) nothing may differ.
+    const double arrive = r.wave_delay_s - 1.5 / w.peak_hz - 4.0 / 100;
+    double early = 0;
+    const std::size_t nr = p.receivers.size();
+    for (std::size_t s = 0; s < r.reference.time_s.size(); ++s)
+      if (r.reference.time_s[s] < arrive)
+        for (std::size_t i = 0; i < nr * 2; ++i) early = std::max(early, std::abs(r.difference[s * nr * 2 + i]));
+    std::printf("plane wave over a void (%s): max |difference| %.3e m, max |u| %.3e m, before arrival %.1e m\n",
+                filled ? "host-filled" : "excavated", diff, scale, early);
+    CHECK(scale > 0.5 * w.wave.amplitude);
+    if (filled) {
+      CHECK(diff == 0.0);
+    } else {
+      CHECK(diff > 1e-3 * scale);
+      CHECK(early < 1e-6 * diff);
+    }
+  }
+}
