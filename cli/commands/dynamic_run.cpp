@@ -413,9 +413,7 @@ HarmonicRun run_harmonic(const Scenario& s, const mesh::Mesh& m, ProgressLine* p
   p.frequencies_hz = a.frequencies_hz;
   if (a.excitation == HarmonicAnalysis::Excitation::wave) {
     p.source = solver::HarmonicProblem::Source::plane_wave;
-    p.wave.type = a.p_wave ? solver::IncidentWave::p : solver::IncidentWave::s;
-    p.wave.amplitude = a.amplitude;
-    p.wave.polarization = a.polarization;
+    p.wave = plane_wave_of(a.wave, a.amplitude);
   } else {
     p.source = solver::HarmonicProblem::Source::point_force;
     p.force.point = {a.source_x, a.source_y, -a.source_depth};
@@ -488,8 +486,9 @@ void write_harmonic_outputs(const HarmonicRun& run, const Scenario& s, const mes
   t.comment(std::string("units: SI; f_hz Hz; x") + (three_d ? ", y" : "") +
             " m; u* complex displacement amplitudes, real and imaginary parts, m (time factor exp(i omega t)); z up");
   if (a.excitation == HarmonicAnalysis::Excitation::wave)
-    t.comment(std::string("excitation: vertically incident plane ") + (a.p_wave ? "P" : "S") + " wave, bedrock outcrop amplitude " +
-              format_number(a.amplitude) + " m (divide u by it for the surface/outcrop transfer function)");
+    t.comment("excitation: " + a.wave.describe(three_d) + ", entering from the rock below; amplitude " + format_number(a.amplitude) +
+              " m = twice the incident wave's (at vertical incidence the bedrock outcrop motion: divide u by it for the "
+              "surface/outcrop transfer function)");
   else
     t.comment("excitation: point force " + format_number(a.force) + (three_d ? " N" : " N/m") + " at x " + format_number(a.source_x) +
               (three_d ? ", y " + format_number(a.source_y) : std::string()) + ", depth " + format_number(a.source_depth) + " m");
@@ -577,7 +576,9 @@ nlohmann::json harmonic_summary(const HarmonicRun& run, const Scenario& s, const
   nlohmann::json j;
   j["frequencies_hz"] = r.frequencies_hz;
   if (a.excitation == HarmonicAnalysis::Excitation::wave)
-    j["excitation"] = {{"type", "plane wave"}, {"wave", a.p_wave ? "P" : "S"}, {"incidence_deg", 0}, {"outcrop_amplitude", a.amplitude}};
+    j["excitation"] = {{"type", "plane wave"},       {"wave", a.wave.name()},         {"incidence_deg", a.wave.incidence_deg},
+                       {"azimuth_deg", a.wave.azimuth_deg}, {"amplitude", a.amplitude},
+                       {"amplitude_meaning", "twice the incident wave's displacement amplitude (vertical incidence: the outcrop motion)"}};
   else
     j["excitation"] = {{"type", "point force"}, {"force", a.force}, {"x", a.source_x}, {"y", a.source_y}, {"depth", a.source_depth},
                        {"node_offset", r.force_offset}};

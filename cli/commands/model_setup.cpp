@@ -194,6 +194,17 @@ std::vector<double> layer_k0(const Scenario& s) {
   return k;
 }
 
+solver::PlaneWave plane_wave_of(const WaveSpec& w, double amplitude) {
+  constexpr double deg = std::numbers::pi / 180;
+  solver::PlaneWave out;
+  out.type = w.p_wave ? solver::IncidentWave::p : solver::IncidentWave::s;
+  out.amplitude = amplitude;
+  out.polarization = w.polarization;
+  out.incidence = w.incidence_deg * deg;
+  out.azimuth = w.azimuth_deg * deg;
+  return out;
+}
+
 solver::Kinematics kinematics_of(const Scenario& s) {
   return s.model == Model::axisymmetric ? solver::Kinematics::axisymmetric
          : s.model == Model::three_d    ? solver::Kinematics::solid

@@ -7,6 +7,7 @@
 #include "mesh/build/geometry.hpp"
 #include "mesh/build/geometry3d.hpp"
 #include "mesh/core/mesh.hpp"
+#include "solver/analysis/harmonic.hpp"
 #include "solver/analysis/signature.hpp"
 #include "solver/analysis/static.hpp"
 
@@ -18,6 +19,9 @@ mesh::Geometry2D geometry_of(const Scenario& s);
 mesh::Geometry3D geometry3d_of(const Scenario& s);
 /// Mean y of the voids (3D far-field ring centre), m.
 double y_centre_of(const Scenario& s);
+
+/// The solver's plane wave for a scenario's wave keys; amplitude [m].
+solver::PlaneWave plane_wave_of(const WaveSpec& w, double amplitude);
 
 /// The element kinematics of the scenario's model.
 solver::Kinematics kinematics_of(const Scenario& s);

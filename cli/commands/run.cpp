@@ -326,6 +326,7 @@ int check_command(const fs::path& file) {
                 "%.2f GB, %.1f s for both models\n",
                 plan.n_steps, plan.time_step_s, plan.stable_step_s, plan.receivers.size(), plan.n_snapshots,
                 plan.estimate.bytes / 1e9, plan.estimate.seconds_total);
+    for (const auto& w : plan.warnings) std::printf("warning: %s\n", w.c_str());
   }
   return exit_ok;
 }

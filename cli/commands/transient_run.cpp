@@ -25,6 +25,8 @@ namespace {
 
 using Clock = std::chrono::steady_clock;
 
+bool a_wave(const Scenario& s) { return s.analyses.transient->wave.has_value(); }
+
 std::string fmt(double v, int prec = 3) {
   std::ostringstream os;
   os.precision(prec);
@@ -46,14 +48,16 @@ solver::TransientProblem problem_of(const Scenario& s, const mesh::Mesh& m) {
   p.kinematics = kinematics_of(s);
   for (const Layer& l : s.layers) {
     const Material& mat = s.materials.at(l.material);
-    p.layers.push_back({{mat.young, mat.poisson, mat.density}, mat.damping});
+    p.layers.push_back({{mat.young, mat.poisson, mat.density}, mat.damping, l.thickness});
   }
+  if (a.wave) p.wave = solver::TransientWave{plane_wave_of(*a.wave, a.amplitude), a.peak_hz, a.delay_s, {}};
   p.source.point = {a.source_x, a.source_y, m.z_max - a.source_depth};
   p.source.direction = a.direction;
   p.source.wavelet.peak_hz = a.peak_hz;
   p.source.wavelet.delay_s = a.delay_s;
   p.source.wavelet.amplitude = a.force;
   p.boundary = solver::OuterBoundary::absorbing;
+  if (a.mass_damping) p.damping_fit = solver::TransientProblem::DampingFit::mass_proportional;
   p.duration_s = a.duration_s;
   p.time_step_s = a.time_step_s;
   return p;
@@ -122,8 +126,17 @@ TransientPlan plan_transient(const Scenario& s, const mesh::Mesh& m) {
   TransientPlan plan;
   double beta_max = 0;
   for (const auto& l : p.layers)
-    if (l.damping > 0) beta_max = std::max(beta_max, solver::fit_rayleigh(l.damping, a.peak_hz / 3, 3 * a.peak_hz).beta);
+    if (l.damping > 0 && !a.mass_damping)
+      beta_max = std::max(beta_max, solver::fit_rayleigh(l.damping, a.peak_hz / 3, 3 * a.peak_hz).beta);
   plan.stable_step_s = solver::stable_time_step(p, false, beta_max)[0];
+  plan.undamped_step_s = beta_max > 0 ? solver::stable_time_step(p, false, 0)[0] : plan.stable_step_s;
+  if (plan.stable_step_s < 0.5 * plan.undamped_step_s)
+    plan.warnings.push_back(
+        "transient: the stiffness-proportional part of the Rayleigh damping (beta up to " + fmt(beta_max) + " s, fitted over " +
+        fmt(a.peak_hz / 3) + "-" + fmt(3 * a.peak_hz) + " Hz) cuts the stable time step from " + fmt(plan.undamped_step_s) + " s to " +
+        fmt(plan.stable_step_s) + " s (" + fmt(plan.undamped_step_s / plan.stable_step_s, 2) + " x the steps): the smallest "
+        "elements carry frequencies far above the band, where that damping grows without bound. 'damping: mass-proportional' "
+        "(no stiffness term), coarser near-void or surface sizes, or less material damping run faster");
   if (a.time_step_s > plan.stable_step_s)
     throw InputError(s.file.string() + ":" + std::to_string(a.time_step_loc.line) + ":" + std::to_string(a.time_step_loc.column) +
                      ": key 'analyses.transient.time-step': " + fmt(a.time_step_s) + " s is above the stable step of this mesh, " +
@@ -137,6 +150,20 @@ TransientPlan plan_transient(const Scenario& s, const mesh::Mesh& m) {
     plan.n_snapshots = static_cast<std::size_t>((plan.n_steps - 1) / plan.snapshot_every + 1);
   }
   plan.receivers = choose_receivers(m, a.receiver_spacing);
+  if (a.wave) {
+    solver::PlaneWavePulse::Spec spec;
+    for (const auto& l : p.layers) spec.layers.push_back({l.elastic, 0, 0, l.thickness});
+    spec.kind = solver::wave_kind(p.wave->wave);
+    spec.incidence = p.wave->wave.incidence;
+    spec.azimuth = p.wave->wave.azimuth;
+    spec.three_d = m.dim() == 3;
+    spec.peak_hz = a.peak_hz;
+    plan.wave_delay_s =
+        a.delay_s > 0 ? a.delay_s : solver::PlaneWavePulse::automatic_delay(spec, m.z_max - m.z_min, {m.x_min, m.x_max, m.y_min, m.y_max});
+    if (a.duration_s <= plan.wave_delay_s)
+      throw InputError(key_of(s, "duration") + ": " + fmt(a.duration_s) + " s ends before the pulse's peak reaches the rock at " +
+                       fmt(plan.wave_delay_s) + " s (the delay that lets the pulse enter the model after t = 0): lengthen it");
+  }
 
   const int d = solver::dofs_per_node(p.kinematics);
   const std::size_t n_dofs = static_cast<std::size_t>(d) * m.n_nodes();
@@ -161,6 +188,7 @@ TransientRun run_transient(const Scenario& s, const mesh::Mesh& m, ProgressLine*
   TransientRun run;
   run.plan = plan_transient(s, m);
   const TransientPlan& plan = run.plan;
+  run.warnings = plan.warnings;
   solver::TransientProblem p = problem_of(s, m);
   p.time_step_s = plan.time_step_s;
   p.receivers = plan.receivers;
@@ -193,11 +221,15 @@ TransientRun run_transient(const Scenario& s, const mesh::Mesh& m, ProgressLine*
     if (!std::isfinite(v)) throw SolveError("transient analysis: the model without voids went unstable (non-finite displacements)");
   for (double v : run.result.voided.u)
     if (!std::isfinite(v)) throw SolveError("transient analysis: the model with voids went unstable (non-finite displacements)");
-  if (run.result.source_offset_m > 0.5 * s.mesh.size)
+  if (!a_wave(s) && run.result.source_offset_m > 0.5 * s.mesh.size)
     run.warnings.push_back("transient: the source acts at the nearest node, " + fmt(run.result.source_offset_m) +
                            " m from the point asked for");
   const auto& a = *s.analyses.transient;
-  if (s.model == Model::axisymmetric && std::abs(a.direction[0]) > 1e-12)
+  if (a.wave && run.result.wave_earliest_s < 0)
+    run.warnings.push_back("transient: with a delay of " + fmt(run.result.wave_delay_s) + " s the pulse is already inside the model at "
+                           "t = 0 (it would need " + fmt(run.result.wave_delay_s - run.result.wave_earliest_s) +
+                           " s): the start is a jump; leave 'delay' out to have it chosen");
+  if (!a.wave && s.model == Model::axisymmetric && std::abs(a.direction[0]) > 1e-12)
     run.warnings.push_back("transient: in an axisymmetric model a force with a radial part is a radial ring load; only a "
                            "vertical force on the axis is a point load");
   run.seconds = std::chrono::duration<double>(Clock::now() - t0).count();
@@ -246,12 +278,17 @@ void write_transient_outputs(const TransientRun& run, const Scenario& s, const m
   t.comment(std::string("voidsign ") + VOIDSIGN_VERSION + " transient surface seismograms with and without voids: " + s.title);
   t.comment(std::string("units: SI; t s; x") + (three_d ? ", y" : "") + " m; u* displacement, m; z up; *_ref: model without voids; d*: "
             "with voids minus without");
-  t.comment("source: Ricker wavelet, peak frequency " + format_number(a.peak_hz) + " Hz, peak " + format_number(a.force) +
-            (three_d ? " N" : s.model == Model::axisymmetric ? " N/rad" : " N/m") + " at its centre time " +
-            format_number(r.reference.time_s.empty() ? 0 : a.delay_s) + " s, at x " + format_number(a.source_x) +
-            (three_d ? ", y " + format_number(a.source_y) : std::string()) + ", depth " + format_number(a.source_depth) +
-            " m; rows grouped by receiver, then time; time step " + format_number(r.time_step_s) + " s, sampled every " +
-            std::to_string(run.plan.record_every) + " step(s)");
+  const std::string rows = "; rows grouped by receiver, then time; time step " + format_number(r.time_step_s) + " s, sampled every " +
+                           std::to_string(run.plan.record_every) + " step(s)";
+  if (a.wave)
+    t.comment("excitation: " + a.wave->describe(three_d) + ", entering from the rock below: a Ricker pulse, peak frequency " +
+              format_number(a.peak_hz) + " Hz, " + format_number(a.amplitude) + " m peak (twice the incident wave's) as it passes the "
+              "top of the rock at x = 0" + (three_d ? ", y = 0" : "") + " at " + fmt(r.wave_delay_s, 4) + " s" + rows);
+  else
+    t.comment("source: Ricker wavelet, peak frequency " + format_number(a.peak_hz) + " Hz, peak " + format_number(a.force) +
+              (three_d ? " N" : s.model == Model::axisymmetric ? " N/rad" : " N/m") + " at its centre time " +
+              format_number(r.reference.time_s.empty() ? 0 : a.delay_s) + " s, at x " + format_number(a.source_x) +
+              (three_d ? ", y " + format_number(a.source_y) : std::string()) + ", depth " + format_number(a.source_depth) + " m" + rows);
   std::vector<double> row;
   for (std::size_t q = 0; q < nr; ++q) {
     const auto& x = m.nodes[static_cast<std::size_t>(r.receivers[q])];
@@ -298,9 +335,29 @@ nlohmann::json transient_summary(const TransientRun& run, const Scenario& s, con
   if (m.dim() == 3) peak["y"] = pk.y;
   nlohmann::json damping = nlohmann::json::array();
   for (const auto& dmp : r.damping) damping.push_back({{"alpha_per_s", dmp.alpha}, {"beta_s", dmp.beta}});
+  nlohmann::json source;
+  if (a.wave)
+    source = {{"type", "plane wave"},
+              {"wave", a.wave->name()},
+              {"incidence_deg", a.wave->incidence_deg},
+              {"azimuth_deg", a.wave->azimuth_deg},
+              {"wavelet", "Ricker"},
+              {"peak_frequency_hz", a.peak_hz},
+              {"amplitude", a.amplitude},
+              {"amplitude_meaning", "twice the incident pulse's peak displacement, at the top of the rock"},
+              {"delay_s", r.wave_delay_s},
+              {"method", "domain reduction method (Bielak et al. 2003), free field by Fourier synthesis of the layered solution"},
+              {"drm_box", {{"half_width", r.drm_box.half_width}, {"half_length", r.drm_box.half_length}, {"depth", r.drm_box.depth}}},
+              {"drm_cells", r.drm_cells},
+              {"free_field_seconds", r.wave_seconds},
+              {"free_field_bytes", r.wave_bytes}};
+  else
+    source = {{"type", "point force"},      {"wavelet", "Ricker"},  {"peak_frequency_hz", a.peak_hz}, {"force", a.force},
+              {"delay_s", a.delay_s},       {"x", a.source_x},      {"y", a.source_y},               {"depth", a.source_depth},
+              {"node_offset", r.source_offset_m}};
   return {{"scheme", "explicit central differences, HRZ-lumped mass, Lysmer-Kuhlemeyer dashpots on sides and bottom"},
-          {"source", {{"wavelet", "Ricker"}, {"peak_frequency_hz", a.peak_hz}, {"force", a.force}, {"delay_s", a.delay_s},
-                      {"x", a.source_x}, {"y", a.source_y}, {"depth", a.source_depth}, {"node_offset", r.source_offset_m}}},
+          {"damping_fit", a.mass_damping ? "mass-proportional" : "rayleigh"},
+          {"source", source},
           {"duration_s", a.duration_s},
           {"time_step_s", r.time_step_s},
           {"stable_step_s", r.stable_step_s},

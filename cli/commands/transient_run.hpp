@@ -1,7 +1,7 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
 #pragma once
-/// A scenario's transient analysis on the static analysis's mesh: the same Ricker-wavelet source
-/// in the model without voids and in the model with them, surface seismograms of both and their
+/// A scenario's transient analysis on the static analysis's mesh: the same Ricker-wavelet force or
+/// plane-wave pulse in the model without voids and in the model with them, surface seismograms of both and their
 /// difference, snapshots of the whole field. Writers and summary block as for the other analyses.
 #include <filesystem>
 #include <nlohmann/json.hpp>
@@ -19,16 +19,20 @@ namespace voidsign::cli {
 struct TransientPlan {
   double stable_step_s = 0;   ///< from the element eigenvalue bound (solver::stable_time_step)
   double time_step_s = 0;     ///< the step that will be used
+  double undamped_step_s = 0; ///< the stable step without the stiffness-proportional damping
+  std::vector<std::string> warnings;  ///< e.g. the damping cutting the step
   int n_steps = 0;
   int record_every = 1;       ///< seismogram sample every k-th step
   int snapshot_every = 0;     ///< 0 = none
   std::size_t n_snapshots = 0;  ///< per model
   std::vector<int> receivers;   ///< surface nodes, in surface order
+  double wave_delay_s = 0;      ///< plane wave: the pulse's delay (given or chosen)
   solver::TransientEstimate estimate;  ///< both models, including recorded traces and snapshots
 };
 
 /// The plan for `analyses.transient` of `s` on `m`. Throws InputError for a time step above the
-/// stable one, or a run that would need more than 80 % of this machine's memory.
+/// stable one, a duration that ends before a plane wave's peak reaches the rock, or a run that
+/// would need more than 80 % of this machine's memory.
 TransientPlan plan_transient(const Scenario& s, const mesh::Mesh& m);
 
 struct TransientRun {

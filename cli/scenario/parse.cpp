@@ -1331,6 +1331,35 @@ std::array<double, 3> parse_direction(const Field& df, bool three_d) {
   return {d[0] / len, d[1] / len, d[2] / len};
 }
 
+// `wave`, `incidence`, `azimuth` (3d) and `polarization` (3d, vertical S only) of an excitation.
+WaveSpec parse_wave(const Map& em, bool three_d) {
+  WaveSpec w;
+  const Field wf = em.need("wave", three_d ? "P, S, SV or SH" : "P, S or SV");
+  const std::string type = wf.choice(three_d ? Strings{"P", "S", "SV", "SH"} : Strings{"P", "S", "SV", "SH"}, "wave type");
+  if (type == "SH" && !three_d)
+    wf.fail("an SH wave moves out of the plane of a plane-strain model: use P or SV (S), or a 3d model");
+  w.p_wave = type == "P";
+  w.polarization = type == "SH" ? 1 : 0;
+  if (auto f = em.get("incidence")) {
+    w.incidence_deg = f->number();
+    if (!(std::abs(w.incidence_deg) < 90))
+      f->fail("the angle from the vertical must be below 90 degrees, got " + num(w.incidence_deg));
+    if (three_d && w.incidence_deg < 0)
+      f->fail("in a 3d model the angle is 0 to 90 degrees; give the direction of travel with 'azimuth'");
+    if (std::abs(w.incidence_deg) > 60)
+      f->warn("at " + num(std::abs(w.incidence_deg)) + " degrees the wave runs nearly along the surface: most of it enters "
+              "through the sides of the model, and the result depends more on the width of the block");
+  }
+  if (auto f = em.get("azimuth")) w.azimuth_deg = f->number();
+  if (auto f = em.get("polarization")) {
+    if (type != "S") f->fail("a polarization applies to 'wave: S' only (SV and SH say it themselves; P moves along its path)");
+    if (w.incidence_deg != 0 || em.get("azimuth"))
+      f->fail("'polarization' is for vertical incidence; at an angle give 'wave: SV' or 'wave: SH' and 'azimuth'");
+    w.polarization = f->choice({"x", "y"}, "polarization") == "y" ? 1 : 0;
+  }
+  return w;
+}
+
 HarmonicAnalysis parse_harmonic(const Map& m, bool three_d) {
   m.allow({"frequencies", "excitation", "absorbing"});
   HarmonicAnalysis a;
@@ -1351,24 +1380,17 @@ HarmonicAnalysis parse_harmonic(const Map& m, bool three_d) {
     if (auto df = sm.get("direction")) a.direction = parse_direction(*df, three_d);
     return a;
   }
-  em.allow(three_d ? Strings{"wave", "incidence", "amplitude", "polarization", "source"}
+  em.allow(three_d ? Strings{"wave", "incidence", "azimuth", "amplitude", "polarization", "source"}
                    : Strings{"wave", "incidence", "amplitude", "source"});
-  a.p_wave = em.need("wave", "S or P").choice({"S", "P"}, "wave type") == "P";
-  if (auto f = em.get("incidence")) {
-    const double inc = f->number();
-    if (inc != 0)
-      f->fail("only vertical incidence (0 degrees) is supported in this version, got " + num(inc) + " degrees");
-  }
+  a.wave = parse_wave(em, three_d);
   if (auto f = em.get("amplitude")) a.amplitude = f->positive();
-  if (auto f = em.get("polarization")) {
-    if (a.p_wave) f->fail("a polarization applies to S waves only (a vertical P wave moves along z)");
-    a.polarization = f->choice({"x", "y"}, "polarization") == "y" ? 1 : 0;
-  }
   return a;
 }
 
+TransientAnalysis finish_transient(const Map& m, TransientAnalysis a);
+
 TransientAnalysis parse_transient(const Map& m, bool three_d) {
-  m.allow({"duration", "time-step", "source", "snapshots", "record-interval", "receiver-spacing"});
+  m.allow({"duration", "time-step", "source", "excitation", "snapshots", "record-interval", "receiver-spacing", "damping"});
   TransientAnalysis a;
   a.loc = m.self().loc();
   a.duration_s = m.need("duration", "simulated time in s").positive();
@@ -1376,26 +1398,52 @@ TransientAnalysis parse_transient(const Map& m, bool three_d) {
     a.time_step_s = f->positive();
     a.time_step_loc = f->loc();
   }
-  const Map sm = m.need("source", three_d ? "{x, y, depth, peak-frequency, force}" : "{x, depth, peak-frequency, force}").map();
-  sm.allow(three_d ? Strings{"x", "y", "depth", "peak-frequency", "force", "direction", "delay"}
-                   : Strings{"x", "depth", "peak-frequency", "force", "direction", "delay"});
-  a.source_x = sm.need("x").number();
-  if (three_d) a.source_y = sm.need("y").number();
-  a.source_depth = sm.need("depth", "0 for a force on the ground surface").non_negative();
-  const Field pf = sm.need("peak-frequency", "the Ricker wavelet's peak frequency in Hz");
-  a.peak_hz = pf.positive();
-  a.force = sm.need("force", three_d ? "peak amplitude in N" : "peak amplitude in N per metre of length").positive();
-  if (auto df = sm.get("direction")) a.direction = parse_direction(*df, three_d);
-  if (auto f = sm.get("delay")) {
-    a.delay_s = f->positive();
+  std::optional<Field> delay_field;
+  if (auto ef = m.get("excitation")) {
+    if (m.get("source")) ef->fail("give either 'source' (a force) or 'excitation' (a plane wave), not both");
+    const Map em = ef->map();
+    em.allow(three_d ? Strings{"wave", "incidence", "azimuth", "polarization", "amplitude", "peak-frequency", "delay"}
+                     : Strings{"wave", "incidence", "amplitude", "peak-frequency", "delay"});
+    a.wave = parse_wave(em, three_d);
+    a.amplitude = em.need("amplitude", "twice the incident pulse's peak displacement, in m").positive();
+    a.peak_hz = em.need("peak-frequency", "the Ricker wavelet's peak frequency in Hz").positive();
+    delay_field = em.get("delay");
+  } else {
+    const Map sm = m.need("source", three_d ? "{x, y, depth, peak-frequency, force} or excitation: {wave, peak-frequency, amplitude}"
+                                            : "{x, depth, peak-frequency, force} or excitation: {wave, peak-frequency, amplitude}")
+                       .map();
+    sm.allow(three_d ? Strings{"x", "y", "depth", "peak-frequency", "force", "direction", "delay"}
+                     : Strings{"x", "depth", "peak-frequency", "force", "direction", "delay"});
+    a.source_x = sm.need("x").number();
+    if (three_d) a.source_y = sm.need("y").number();
+    a.source_depth = sm.need("depth", "0 for a force on the ground surface").non_negative();
+    const Field pf = sm.need("peak-frequency", "the Ricker wavelet's peak frequency in Hz");
+    a.peak_hz = pf.positive();
+    a.force = sm.need("force", three_d ? "peak amplitude in N" : "peak amplitude in N per metre of length").positive();
+    if (auto df = sm.get("direction")) a.direction = parse_direction(*df, three_d);
+    delay_field = sm.get("delay");
+  }
+  if (delay_field) {
+    a.delay_s = delay_field->positive();
     if (a.delay_s < 1.0 / a.peak_hz)
-      f->warn("a delay below 1/peak-frequency (" + num(1.0 / a.peak_hz) + " s) cuts the start of the wavelet off: the "
-              "source then starts with a jump");
+      delay_field->warn("a delay below 1/peak-frequency (" + num(1.0 / a.peak_hz) + " s) cuts the start of the wavelet off: the "
+                        "source then starts with a jump");
+  }
+  if (a.wave) {
+    if (a.delay_s > 0 && a.delay_s >= a.duration_s)
+      m.need("duration").fail("the duration " + num(a.duration_s) + " s ends before the pulse's peak reaches the rock at " +
+                              num(a.delay_s) + " s: lengthen it");
+    return finish_transient(m, a);
   }
   if (a.delay_s == 0) a.delay_s = 1.5 / a.peak_hz;
   if (a.delay_s >= a.duration_s)
     m.need("duration").fail("the duration " + num(a.duration_s) + " s ends before the wavelet's peak at " + num(a.delay_s) +
                             " s: lengthen it");
+  return finish_transient(m, a);
+}
+
+// The keys shared by both excitations.
+TransientAnalysis finish_transient(const Map& m, TransientAnalysis a) {
   if (auto f = m.get("snapshots")) {
     a.snapshot_interval_s = f->positive();
     const double n = a.duration_s / a.snapshot_interval_s;
@@ -1404,6 +1452,7 @@ TransientAnalysis parse_transient(const Map& m, bool three_d) {
   }
   if (auto f = m.get("record-interval")) a.record_interval_s = f->positive();
   if (auto f = m.get("receiver-spacing")) a.receiver_spacing = f->positive();
+  if (auto f = m.get("damping")) a.mass_damping = f->choice({"rayleigh", "mass-proportional"}, "damping fit") == "mass-proportional";
   return a;
 }
 
@@ -2064,8 +2113,12 @@ Scenario parse_scenario(const std::string& yaml_text, const std::filesystem::pat
   if (transient_field) {
     // The Ricker amplitude spectrum (f/fp)^2 exp(1 - (f/fp)^2) is down to 3 % of its peak at 2.5 fp.
     TransientAnalysis& a = *sc.analyses.transient;
-    a.elements_per_wavelength = check_resolution(*transient_field->map().get("source")->map().get("peak-frequency"), sc,
-                                                 2.5 * a.peak_hz, "2.5 x the wavelet's peak frequency");
+    const Map tm = transient_field->map();
+    const Map em = (a.wave ? *tm.get("excitation") : *tm.get("source")).map();
+    if (a.wave && sc.model == Model::axisymmetric)
+      tm.get("excitation")->fail("a plane wave is not axisymmetric: use a plane-strain or 3d model (or a force on the axis)");
+    a.elements_per_wavelength = check_resolution(*em.get("peak-frequency"), sc, 2.5 * a.peak_hz,
+                                                 "2.5 x the wavelet's peak frequency");
   }
   if (ambient_field) {
     AmbientAnalysis& a = *sc.analyses.ambient;
@@ -2107,6 +2160,34 @@ Scenario load_scenario(const std::filesystem::path& file) {
   buf << in.rdbuf();
   if (in.bad()) throw InputError(file.string() + ": cannot read the scenario file");
   return parse_scenario(buf.str(), file);
+}
+
+std::string WaveSpec::name() const {
+  if (p_wave) return "P";
+  return polarization == 1 ? "SH" : "SV";
+}
+
+std::string WaveSpec::describe(bool three_d) const {
+  std::ostringstream os;
+  if (incidence_deg == 0) {
+    os << "vertically incident plane " << (p_wave ? "P" : "S") << " wave";
+    if (three_d && !p_wave) {
+      const double motion = std::fmod(azimuth_deg + (polarization == 1 ? 90.0 : 0.0) + 360.0, 360.0);
+      if (motion == 0 || motion == 180)
+        os << " (motion along x)";
+      else if (motion == 90 || motion == 270)
+        os << " (motion along y)";
+      else
+        os << " (motion toward azimuth " << motion << " deg)";
+    }
+  } else {
+    os << "plane " << name() << " wave at " << incidence_deg << " deg from the vertical";
+    if (three_d)
+      os << ", travelling toward azimuth " << azimuth_deg << " deg";
+    else
+      os << ", travelling toward " << (incidence_deg > 0 ? "+x" : "-x");
+  }
+  return os.str();
 }
 
 }  // namespace voidsign::cli

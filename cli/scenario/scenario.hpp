@@ -105,13 +105,24 @@ struct ModalAnalysis {
   SourceLoc loc;
 };
 
+/// An incident plane wave: keys `wave`, `incidence`, `azimuth` and `polarization`.
+struct WaveSpec {
+  bool p_wave = false;       ///< P instead of S
+  int polarization = 0;      ///< S: 0 = SV (motion in the vertical plane of travel), 1 = SH (3d)
+  double incidence_deg = 0;  ///< from the vertical in the rock; plane strain: signed, > 0 travelling toward +x
+  double azimuth_deg = 0;    ///< 3d: the horizontal direction of travel, anticlockwise from +x
+  /// "P", "SV" or "SH" ("S" at vertical incidence in plane strain).
+  std::string name() const;
+  /// E.g. "vertically incident plane S wave" or "plane SV wave at 20 deg from the vertical".
+  std::string describe(bool three_d) const;
+};
+
 /// `analyses.harmonic`: steady-state response over a list of frequencies.
 struct HarmonicAnalysis {
   std::vector<double> frequencies_hz;  ///< ascending, each > 0
   enum class Excitation { wave, source } excitation = Excitation::wave;
-  bool p_wave = false;       ///< wave: P (vertical motion) instead of S
-  int polarization = 0;      ///< wave, 3d S: motion along x (0) or y (1)
-  double amplitude = 1e-6;   ///< wave: outcrop displacement amplitude of the bedrock [m]
+  WaveSpec wave;             ///< wave: what enters from below
+  double amplitude = 1e-6;   ///< wave: twice the incident amplitude (vertical incidence: the bedrock outcrop motion) [m]
   double source_x = 0, source_y = 0, source_depth = 0;  ///< source position [m], depth positive down
   double force = 0;          ///< source amplitude [N/m plane strain, N in 3d]
   std::array<double, 3> direction{0, 0, -1};  ///< source direction (x, y, z), z up, unit length
@@ -120,18 +131,24 @@ struct HarmonicAnalysis {
   SourceLoc loc;
 };
 
-/// `analyses.transient`: wave propagation in time from a Ricker-wavelet point (2D: line) force.
+/// `analyses.transient`: wave propagation in time from a Ricker-wavelet point (2D: line) force or
+/// a plane-wave pulse entering from below.
 struct TransientAnalysis {
   double duration_s = 1;      ///< simulated time [s]
   double time_step_s = 0;     ///< [s]; 0 = 0.9 x the stable step computed from the mesh
+  std::optional<WaveSpec> wave;  ///< `excitation`: a plane-wave pulse instead of the force
+  double amplitude = 0;       ///< wave: twice the incident pulse's peak displacement [m]
   double source_x = 0, source_y = 0, source_depth = 0;  ///< m, depth positive down
   double peak_hz = 10;        ///< the Ricker wavelet's peak frequency [Hz]
   double force = 0;           ///< its peak amplitude [N/m plane strain, N/rad axisymmetric, N in 3d]
-  double delay_s = 0;         ///< time of the wavelet's central peak [s]; 0 = 1.5 / peak_hz
+  /// Time of the wavelet's central peak [s] (wave: as it passes the top of the rock at x = y = 0);
+  /// 0 = 1.5 / peak_hz (wave: chosen so that the pulse enters the model after t = 0).
+  double delay_s = 0;
   std::array<double, 3> direction{0, 0, -1};  ///< unit vector (x, y, z), z up
   double snapshot_interval_s = 0;  ///< [s]; 0 = no snapshots
   double record_interval_s = 0;    ///< seismogram sample interval [s]; 0 = about 1/(20 peak_hz)
   double receiver_spacing = 0;     ///< m; 0 = every surface node
+  bool mass_damping = false;       ///< `damping: mass-proportional` instead of Rayleigh
   double elements_per_wavelength = 0;  ///< at 2.5 x peak_hz, slowest S wave, far-field size
   SourceLoc loc, time_step_loc;  ///< of the block and of its time-step value
 };

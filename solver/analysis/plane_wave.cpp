@@ -269,6 +269,43 @@ double unit_ricker(double peak_hz, double tau) {
 
 }  // namespace
 
+namespace {
+
+// The range of the delay p·h over the corners of the (x, y) range.
+std::array<double, 2> delay_range(double p, double cos_az, double sin_az, const std::array<double, 4>& xy) {
+  double lo = std::numeric_limits<double>::infinity(), hi = -lo;
+  for (double x : {xy[0], xy[1]})
+    for (double y : {xy[2], xy[3]}) {
+      const double ph = p * (x * cos_az + y * sin_az);
+      lo = std::min(lo, ph);
+      hi = std::max(hi, ph);
+    }
+  return {lo, hi};
+}
+
+// How much earlier than at the top of the half-space on h = 0 the incident wave reaches the
+// earliest point of the range: points upstream (p h < 0) and points below that top (the incident
+// wave is still coming up there).
+double arrival_lead(const PlaneWavePulse::Spec& spec, double max_depth, const std::array<double, 4>& xy) {
+  const Elastic& rock = spec.layers.back().elastic;
+  const double p = incidence_slowness(rock, spec.kind, spec.incidence);
+  const double ca = spec.three_d ? std::cos(spec.azimuth) : 1.0, sa = spec.three_d ? std::sin(spec.azimuth) : 0.0;
+  const auto [ph_lo, ph_hi] = delay_range(p, ca, sa, xy);
+  double rock_top = 0;
+  for (std::size_t j = 0; j + 1 < spec.layers.size(); ++j) rock_top += spec.layers[j].thickness;
+  const auto [lam, mu] = lame(rock);
+  const double v_in = std::sqrt((spec.kind == WaveKind::p ? lam + 2 * mu : mu) / rock.density);
+  const double eta = std::sqrt(std::max(0.0, 1 / (v_in * v_in) - p * p));
+  return std::max(0.0, -ph_lo) + std::max(0.0, max_depth - rock_top) * eta;
+}
+
+}  // namespace
+
+double PlaneWavePulse::automatic_delay(const Spec& spec, double max_depth, std::array<double, 4> xy_range) {
+  if (spec.layers.empty() || !(spec.peak_hz > 0)) throw std::invalid_argument("plane-wave pulse: no layers or no peak frequency");
+  return 1.5 / spec.peak_hz + arrival_lead(spec, std::max(max_depth, 0.0), xy_range);
+}
+
 PlaneWavePulse::PlaneWavePulse(const Spec& spec, double t_end, double max_depth, std::array<double, 4> xy_range)
     : spec_(spec) {
   if (spec.layers.empty()) throw std::invalid_argument("plane-wave pulse: no layers");
@@ -281,32 +318,19 @@ PlaneWavePulse::PlaneWavePulse(const Spec& spec, double t_end, double max_depth,
   if (spec.delay_s < 0) throw std::invalid_argument("plane-wave pulse: delay must be >= 0");
   max_depth = std::max(max_depth, 0.0);
   const double f0 = spec.peak_hz;
-  const Elastic& rock = spec.layers.back().elastic;
-  p_ = incidence_slowness(rock, spec.kind, spec.incidence);
+  p_ = incidence_slowness(spec.layers.back().elastic, spec.kind, spec.incidence);
   cos_az_ = spec.three_d ? std::cos(spec.azimuth) : 1.0;
   sin_az_ = spec.three_d ? std::sin(spec.azimuth) : 0.0;
   comps_ = spec.kind == WaveKind::sh ? 1 : 2;
 
-  // Range of the delay p·h over the points.
-  double ph_lo = std::numeric_limits<double>::infinity(), ph_hi = -ph_lo;
-  for (double x : {xy_range[0], xy_range[1]})
-    for (double y : {xy_range[2], xy_range[3]}) {
-      const double ph = p_ * (x * cos_az_ + y * sin_az_);
-      ph_lo = std::min(ph_lo, ph);
-      ph_hi = std::max(ph_hi, ph);
-    }
+  const auto [ph_lo, ph_hi] = delay_range(p_, cos_az_, sin_az_, xy_range);
   const std::size_t n_layers = spec.layers.size();
   top_.assign(n_layers, 0);
   for (std::size_t j = 1; j < n_layers; ++j) {
     if (!(spec.layers[j - 1].thickness > 0)) throw std::invalid_argument("plane-wave pulse: layer thickness must be > 0");
     top_[j] = top_[j - 1] + spec.layers[j - 1].thickness;
   }
-  // Lead of the earliest arrival over the arrival at the half-space's top on h = 0: points
-  // upstream (p h < 0) and points below that top (the incident wave is still coming up).
-  const auto [lam, mu] = lame(rock);
-  const double v_in = std::sqrt((spec.kind == WaveKind::p ? lam + 2 * mu : mu) / rock.density);
-  const double eta = std::sqrt(std::max(0.0, 1 / (v_in * v_in) - p_ * p_));
-  const double lead = std::max(0.0, -ph_lo) + std::max(0.0, max_depth - top_.back()) * eta;
+  const double lead = arrival_lead(spec, max_depth, xy_range);
   delay_ = spec.delay_s > 0 ? spec.delay_s : 1.5 / f0 + lead;
   earliest_ = delay_ - lead - 1.5 / f0;
 

@@ -158,6 +158,9 @@ class PlaneWavePulse {
   /// the surface, time t [s]; zero before the pulse arrives.
   void at(double x, double y, double depth, double t, double* u, double* v) const;
 
+  /// The delay chosen when Spec::delay_s is 0, for the same points [s].
+  static double automatic_delay(const Spec& spec, double max_depth, std::array<double, 4> xy_range);
+
   double delay() const { return delay_; }
   /// The earliest time the pulse (its peak less 1.5 / peak_hz) reaches a point of the range [s].
   double earliest_arrival() const { return earliest_; }

@@ -74,8 +74,13 @@ std::vector<RayleighDamping> layer_damping(const TransientProblem& p) {
     f1 = peak_frequency(p) / 3;
     f2 = peak_frequency(p) * 3;
   }
-  for (std::size_t l = 0; l < p.layers.size(); ++l)
-    if (p.layers[l].damping > 0) out[l] = fit_rayleigh(p.layers[l].damping, f1, f2);
+  for (std::size_t l = 0; l < p.layers.size(); ++l) {
+    if (!(p.layers[l].damping > 0)) continue;
+    if (p.damping_fit == TransientProblem::DampingFit::mass_proportional)
+      out[l] = {2 * p.layers[l].damping * 2 * pi * std::sqrt(f1 * f2), 0.0};
+    else
+      out[l] = fit_rayleigh(p.layers[l].damping, f1, f2);
+  }
   return out;
 }
 

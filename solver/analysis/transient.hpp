@@ -108,6 +108,10 @@ struct TransientProblem {
   /// Band over which each layer's damping ratio is matched (fit_rayleigh); ignored when every
   /// layer has ξ = 0. Both 0 = [f/3, 3f] around the source's (or the wave's) peak frequency f.
   double damping_f1_hz = 0, damping_f2_hz = 0;
+  /// Rayleigh (mass and stiffness proportional, ξ matched at f₁ and f₂), or mass proportional
+  /// only (α = 2ξω_c at the band's centre ω_c = 2π√(f₁f₂), β = 0: ξ falls as 1/f across the
+  /// band, but the stiffness term no longer shortens the stable step).
+  enum class DampingFit { rayleigh, mass_proportional } damping_fit = DampingFit::rayleigh;
 
   std::vector<int> receivers;  ///< nodes whose displacements are recorded
   int receiver_every = 1;      ///< record every k-th step (step 0 included)

@@ -1404,8 +1404,22 @@ TEST_CASE("modal and harmonic keys: values, defaults and errors with their posit
   expect_error(h + "    frequencies: {min: 1, max: 2, count: 0}\n" + wave, "0}", "analyses.harmonic.frequencies.count",
                "at least 1");
   expect_error(h + "    frequencies: [1, -2]\n" + wave, "-2", "analyses.harmonic.frequencies.1", "greater than 0");
-  expect_error(h + "    frequencies: [1, 2]\n    excitation: {wave: S, incidence: 30}\n", "30",
-               "analyses.harmonic.excitation.incidence", "only vertical incidence");
+  expect_error(h + "    frequencies: [1, 2]\n    excitation: {wave: S, incidence: 95}\n", "95",
+               "analyses.harmonic.excitation.incidence", "below 90 degrees");
+  expect_error(h + "    frequencies: [1, 2]\n    excitation: {wave: SH, incidence: 20}\n", "SH",
+               "analyses.harmonic.excitation.wave", "out of the plane");
+  expect_error(h + "    frequencies: [1, 2]\n    excitation: {wave: P, azimuth: 20}\n", "azimuth",
+               "analyses.harmonic.excitation.azimuth", "unknown key");
+  {
+    const Scenario inclined = parse_scenario(h + "    frequencies: [1, 2]\n    excitation: {wave: SV, incidence: -30, amplitude: 2.0e-6}\n",
+                                       "inline.yaml");
+    const WaveSpec& w = inclined.analyses.harmonic->wave;
+    CHECK(!w.p_wave);
+    CHECK(w.polarization == 0);
+    CHECK(w.incidence_deg == -30);
+    CHECK(w.name() == "SV");
+    CHECK(w.describe(false) == "plane SV wave at -30 deg from the vertical, travelling toward -x");
+  }
   expect_error(h + "    frequencies: [1, 2]\n    excitation: {wave: R}\n", "R}", "analyses.harmonic.excitation.wave",
                "unknown wave type");
   expect_error(h + "    frequencies: [1, 2]\n", "frequencies", "analyses.harmonic.excitation", "required key is missing");
@@ -1475,6 +1489,50 @@ TEST_CASE("transient analysis keys and their mistakes") {
   // The wavelet's band must be resolved by the mesh: 2.5 x 60 Hz in chalk with 4 m elements is not.
   expect_error(head + "    duration: 1.0\n    source: {x: 0, depth: 0, peak-frequency: 60, force: 1}\n", "60",
                "analyses.transient.source.peak-frequency", "element(s) of size 4 m per wavelength");
+}
+
+TEST_CASE("transient plane-wave excitation keys and their mistakes") {
+  const std::string v = "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\nmesh: {size: 4}\n";
+  const std::string head = k_head + v + "analyses:\n  transient:\n    duration: 2.0\n";
+  const Scenario sc =
+      parse_scenario(head + "    excitation: {wave: P, incidence: 25, peak-frequency: 4, amplitude: 1.0e-4}\n", k_file);
+  const TransientAnalysis& a = *sc.analyses.transient;
+  REQUIRE(a.wave);
+  CHECK(a.wave->p_wave);
+  CHECK(a.wave->incidence_deg == 25);
+  CHECK(a.amplitude == 1.0e-4);
+  CHECK(a.peak_hz == 4);
+  CHECK(a.delay_s == 0);  // chosen from the geometry when the run is planned
+  const std::string src = "    source: {x: -20, depth: 0, peak-frequency: 5, force: 1.0e4}\n";
+  expect_error(head + src + "    excitation: {wave: S, peak-frequency: 4, amplitude: 1.0e-4}\n", "{wave: S, p", "analyses.transient.excitation",
+               "not both");
+  expect_error(head + "    excitation: {wave: S, peak-frequency: 4}\n", "{wave", "analyses.transient.excitation.amplitude",
+               "required key is missing");
+  expect_error(head + "    excitation: {wave: SH, peak-frequency: 4, amplitude: 1.0e-4}\n", "SH",
+               "analyses.transient.excitation.wave", "out of the plane");
+  expect_error(head + "    excitation: {wave: S, incidence: 90, peak-frequency: 4, amplitude: 1.0e-4}\n", "90",
+               "analyses.transient.excitation.incidence", "below 90 degrees");
+  expect_error(head + "    excitation: {wave: S, peak-frequency: 60, amplitude: 1.0e-4}\n", "60",
+               "analyses.transient.excitation.peak-frequency", "per wavelength");
+  const std::string axi = "format: 1\nmodel: axisymmetric\ndomain: {width: 100, depth: 50}\nlayers:\n  - {material: chalk}\n"
+                          "voids:\n  - {shape: circle, x: 0, depth: 15, radius: 2}\nmesh: {size: 4}\n"
+                          "analyses:\n  transient:\n    duration: 2.0\n";
+  expect_error(axi + "    excitation: {wave: P, peak-frequency: 4, amplitude: 1.0e-4}\n", "{wave", "analyses.transient.excitation",
+               "not axisymmetric");
+  // 3d: azimuth and SH; polarization only for a vertical S wave.
+  const std::string h3 = "format: 1\nmodel: 3d\ndomain: {width: 80, length: 80, depth: 40}\nlayers:\n  - {material: chalk}\n"
+                         "voids:\n  - {shape: sphere, x: 0, y: 0, depth: 15, radius: 3}\nmesh: {size: 5}\n"
+                         "analyses:\n  transient:\n    duration: 2.0\n";
+  const Scenario s3 =
+      parse_scenario(h3 + "    excitation: {wave: SH, incidence: 30, azimuth: 120, peak-frequency: 3, amplitude: 1.0e-4}\n", k_file);
+  REQUIRE(s3.analyses.transient->wave);
+  CHECK(s3.analyses.transient->wave->polarization == 1);
+  CHECK(s3.analyses.transient->wave->azimuth_deg == 120);
+  CHECK(s3.analyses.transient->wave->describe(true) == "plane SH wave at 30 deg from the vertical, travelling toward azimuth 120 deg");
+  expect_error(h3 + "    excitation: {wave: S, incidence: 10, polarization: y, peak-frequency: 3, amplitude: 1.0e-4}\n", "y, peak",
+               "analyses.transient.excitation.polarization", "vertical incidence");
+  expect_error(h3 + "    excitation: {wave: SV, incidence: -10, peak-frequency: 3, amplitude: 1.0e-4}\n", "-10",
+               "analyses.transient.excitation.incidence", "azimuth");
 }
 
 TEST_CASE("sensors: catalogue names, overrides, explicit specs and their mistakes") {
