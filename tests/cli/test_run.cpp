@@ -157,7 +157,7 @@ TEST_CASE("a mesh too large for the machine is refused before allocating") {
 
 TEST_CASE("the demo scenarios run") {
   for (const std::string name : {"chalk-gallery.yaml", "karst-cave.yaml", "gallery-under-road-3d.yaml", "cellar-under-orchard-dynamic.yaml",
-                                 "shallow-working-village.yaml", "deep-chamber-upland.yaml"}) {
+                                 "shallow-working-village.yaml", "deep-chamber-upland.yaml", "adit-oblique-waves.yaml"}) {
     const fs::path d = temp_dir("demo");
     Cmd c = run(std::string("run ") + VOIDSIGN_SOURCE_DIR + "/scenarios/" + name + " --out " + (d / "o").string());
     INFO(c.out);
@@ -193,6 +193,21 @@ TEST_CASE("the demo scenarios run") {
       CHECK(read(d / "o/harmonic/surface.csv").find("\nf_hz,x,ux_re,ux_im,uz_re,uz_im,ux_ref_re") != std::string::npos);
       CHECK(fs::exists(d / "o/harmonic/fields.pvd"));
       CHECK(fs::exists(d / "o/modal/modes.pvd"));
+    }
+    if (name.find("oblique") != std::string::npos) {
+      // Inclined waves from the scenario: the CSV headers say so, and the summary carries the
+      // angle, the DRM box and a delay that lets the pulse in after t = 0.
+      CHECK(read(d / "o/harmonic/surface.csv").find("plane SV wave at 30 deg from the vertical, travelling toward +x") !=
+            std::string::npos);
+      CHECK(read(d / "o/transient/seismograms.csv").find("plane P wave at -20 deg from the vertical, travelling toward -x") !=
+            std::string::npos);
+      const auto j = nlohmann::json::parse(read(d / "o/summary.json"));
+      CHECK(j["harmonic"]["excitation"]["incidence_deg"].get<double>() == 30);
+      CHECK(j["transient"]["source"]["type"] == "plane wave");
+      CHECK(j["transient"]["source"]["drm_cells"].get<int>() > 0);
+      CHECK(j["transient"]["source"]["delay_s"].get<double>() > 1.5 / 4);
+      CHECK(j["transient"]["damping_fit"] == "mass-proportional");
+      CHECK(j["transient"]["peak_anomaly"]["anomaly_absmax"].get<double>() > 0);
     }
     fs::remove_all(d);
   }
