@@ -171,8 +171,10 @@ TransientPlan plan_transient(const Scenario& s, const mesh::Mesh& m) {
   const std::size_t recorded = n_samples * plan.receivers.size() * static_cast<std::size_t>(d);
   bool layered_beta = false;
   for (const auto& l : p.layers) layered_beta = layered_beta || l.damping != p.layers.front().damping;
+  // Node blocks unless single components are held (the axis of an axisymmetric model).
+  const int block = s.model == Model::axisymmetric ? 1 : d;
   plan.estimate = solver::estimate_transient(n_dofs, stiffness_nonzeros(m, d), static_cast<std::size_t>(plan.n_steps), layered_beta,
-                                             recorded, 2);
+                                             recorded, 2, block);
   // Both operators live at once; traces of both models and their difference; snapshots of both.
   plan.estimate.bytes = 2 * plan.estimate.bytes + 8.0 * static_cast<double>(2 * recorded) +
                         16.0 * static_cast<double>(plan.n_snapshots * n_dofs);

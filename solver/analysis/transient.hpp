@@ -189,14 +189,18 @@ class ExplicitModel {
                       const PlaneWavePulse* pulse = nullptr) const;
 
   std::size_t n_free() const { return free_.size(); }
-  std::size_t n_nonzeros() const { return col_.size(); }
+  /// Stored stiffness entries (blocked: blocks × d²).
+  std::size_t n_nonzeros() const { return block_ > 1 ? bcol_.size() * static_cast<std::size_t>(block_ * block_) : col_.size(); }
+  /// d when the operator is stored in node blocks (block-row CSR), 1 for scalar CSR.
+  int block_size() const { return block_; }
   /// The dof (node · d + j) of each free unknown, ascending.
   const std::vector<int>& free_dofs() const { return free_; }
   /// Reduced lumped mass [kg] and stiffness (full CSR) over the free unknowns.
   const std::vector<double>& mass() const { return mass_; }
   /// y = K x over the free unknowns (OpenMP over rows).
   void multiply(std::span<const double> x, std::span<double> y) const;
-  /// Row pointer, columns and values of the reduced full-storage stiffness.
+  /// Row pointer, columns and values of the reduced full-storage stiffness in scalar CSR (empty
+  /// when block_size() > 1).
   const std::vector<std::int64_t>& row_pointer() const { return row_; }
   const std::vector<int>& columns() const { return col_; }
   const std::vector<double>& values() const { return val_; }
@@ -209,6 +213,7 @@ class ExplicitModel {
 
  private:
   void build_drm(const TransientProblem& p, const std::vector<RayleighDamping>& damping);
+  void block_rows();
 
   const TransientProblem* p_;
   double dt_;
@@ -222,6 +227,10 @@ class ExplicitModel {
   std::vector<double> val_;     // K
   std::vector<double> val_beta_;  // Σ β_e K_e, when β differs between layers
   double beta_ = 0;             // uniform β
+  int block_ = 1;               // d when blocked (then the CSR arrays are empty)
+  std::vector<std::int64_t> brow_;
+  std::vector<int> bcol_;       // block column (node of the reduced numbering / d)
+  std::vector<double> bval_, bvalb_;  // d × d per block, row-major (bvalb_: Σ β_e K_e)
   std::vector<double> mass_, a_, b_;
   double setup_seconds_ = 0;
   // The DRM (plane wave): its nodes and the effective-force operators f = G u⁰ + G_β v⁰ over the
@@ -252,8 +261,9 @@ struct TransientEstimate {
 };
 /// n_dofs: free unknowns; n_nonzeros: stored entries of the full-storage stiffness (≈ n_dofs ×
 /// 2·(neighbour nodes + 1)); stiffness_damping: whether a second value array is streamed;
-/// n_recorded: receiver values kept (samples × receivers × d).
+/// n_recorded: receiver values kept (samples × receivers × d); block: the node block size the
+/// operator is stored in (ExplicitModel::block_size(); one column index per block²).
 TransientEstimate estimate_transient(std::size_t n_dofs, std::size_t n_nonzeros, std::size_t n_steps,
-                                     bool stiffness_damping, std::size_t n_recorded, int n_models = 2);
+                                     bool stiffness_damping, std::size_t n_recorded, int n_models = 2, int block = 1);
 
 }  // namespace voidsign::solver
