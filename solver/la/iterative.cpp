@@ -15,6 +15,8 @@
 #include <stdexcept>
 #include <type_traits>
 
+#include "solver/la/mpi_runtime.hpp"
+
 namespace voidsign::solver {
 
 namespace {
@@ -25,35 +27,15 @@ static_assert(std::is_same_v<HYPRE_Real, double>, "hypre not built in double pre
 using Clock = std::chrono::steady_clock;
 double since(Clock::time_point t0) { return std::chrono::duration<double>(Clock::now() - t0).count(); }
 
-bool g_owns_mpi = false;
+void shutdown_hypre() { HYPRE_Finalize(); }
 
-void shutdown_runtime() {
-  HYPRE_Finalize();
-  int finalized = 0;
-  MPI_Finalized(&finalized);
-  if (g_owns_mpi && !finalized) MPI_Finalize();
-}
-
-/// MPI (as a singleton process, unless the host program already started it) and hypre, once.
+/// MPI (solver/la/mpi_runtime.hpp) and hypre, once.
 void ensure_runtime() {
   static std::once_flag once;
   std::call_once(once, [] {
-    int initialized = 0;
-    MPI_Initialized(&initialized);
-    if (!initialized) {
-      // Not started by a launcher: no helper daemon, no network transports. Only set when the
-      // user has not chosen otherwise.
-      if (!std::getenv("OMPI_COMM_WORLD_SIZE")) {
-        setenv("OMPI_MCA_ess_singleton_isolated", "1", 0);
-        setenv("OMPI_MCA_btl", "self", 0);
-      }
-      int provided = 0;
-      if (MPI_Init_thread(nullptr, nullptr, MPI_THREAD_FUNNELED, &provided) != MPI_SUCCESS)
-        throw std::runtime_error("IterativeSolver: MPI initialisation failed");
-      g_owns_mpi = true;
-    }
+    ensure_mpi();
     HYPRE_Init();
-    std::atexit(shutdown_runtime);
+    std::atexit(shutdown_hypre);
   });
 }
 

@@ -1,0 +1,244 @@
+// SPDX-License-Identifier: GPL-3.0-or-later
+#include "solver/la/complex_ldlt.hpp"
+
+#include <zmumps_c.h>
+
+#include <chrono>
+#include <climits>
+#include <complex>
+#include <mutex>
+#include <sstream>
+#include <string>
+
+#include "solver/la/mpi_runtime.hpp"
+
+namespace voidsign::solver {
+
+static_assert(sizeof(ZMUMPS_COMPLEX) == sizeof(std::complex<double>), "MUMPS complex layout");
+
+namespace {
+using Clock = std::chrono::steady_clock;
+double seconds_since(Clock::time_point t0) { return std::chrono::duration<double>(Clock::now() - t0).count(); }
+
+// MUMPS keeps module-level state (its load-balancing module among others) across the instances
+// of a process: two factorisations at once in one process corrupt each other (measured: an
+// allocation failure in ZMUMPS_LOAD_INIT). Every call into MUMPS therefore holds this lock; the
+// callers overlap their own work (assembly, dense Schur systems, residuals) instead.
+std::mutex g_mumps_lock;
+
+// MUMPS's 1-based control and information arrays.
+constexpr int icntl(int k) { return k - 1; }
+
+std::string mumps_error(const char* phase, int info1, int info2) {
+  std::ostringstream os;
+  os << "MUMPS " << phase << " failed (INFOG(1) = " << info1 << ", INFOG(2) = " << info2;
+  switch (info1) {
+    case -10: os << ": the matrix is numerically singular"; break;
+    case -13: os << ": memory allocation failed"; break;
+    case -8:
+    case -9:
+    case -14:
+    case -15: os << ": working space too small"; break;
+    case -6: os << ": the matrix is structurally singular"; break;
+    default: break;
+  }
+  os << ")";
+  return os.str();
+}
+
+}  // namespace
+
+struct ComplexLdlt::Impl {
+  ZMUMPS_STRUC_C id{};
+  bool initialised = false, analysed = false, factorised = false, reduced = false;
+  LdltOrdering ordering = LdltOrdering::automatic;
+  long n = 0;
+  std::vector<MUMPS_INT> irn, jcn, schur_list;
+  std::vector<long> pos;  // position in the CSC value array of each lower-triangle entry
+  std::vector<std::complex<double>> values, schur_buffer;
+  Eigen::MatrixXcd schur, rhs, reduced_rhs;
+  double analyse_s = 0, factor_s = 0;
+
+  void call(int job) {
+    const std::lock_guard<std::mutex> lock(g_mumps_lock);
+    id.job = job;
+    zmumps_c(&id);
+  }
+  int info1() const { return id.infog[0]; }
+  int info2() const { return id.infog[1]; }
+};
+
+ComplexLdlt::ComplexLdlt(LdltOrdering ordering) : impl_(std::make_unique<Impl>()) {
+  ensure_mpi();
+  Impl& s = *impl_;
+  s.ordering = ordering;
+  s.id.comm_fortran = mpi_comm_self_fortran();
+  s.id.par = 1;
+  s.id.sym = 2;
+  s.call(-1);
+  if (s.info1() < 0) throw ComplexSolveError(mumps_error("initialisation", s.info1(), s.info2()));
+  s.initialised = true;
+  s.id.icntl[icntl(1)] = -1;  // no error, diagnostic or statistics output
+  s.id.icntl[icntl(2)] = -1;
+  s.id.icntl[icntl(3)] = -1;
+  s.id.icntl[icntl(4)] = 0;
+}
+
+ComplexLdlt::~ComplexLdlt() {
+  if (impl_->initialised) impl_->call(-2);
+}
+
+void ComplexLdlt::analyze(const ComplexMatrix& a, const std::vector<long>& schur) {
+  Impl& s = *impl_;
+  if (a.rows() != a.cols()) throw ComplexSolveError("ComplexLdlt: the matrix is not square");
+  if (a.rows() >= INT_MAX) throw ComplexSolveError("ComplexLdlt: too many unknowns for 32-bit MUMPS indices");
+  s.n = a.rows();
+  s.irn.clear();
+  s.jcn.clear();
+  s.pos.clear();
+  const long* outer = a.outerIndexPtr();
+  const long* inner = a.innerIndexPtr();
+  for (long j = 0; j < s.n; ++j)
+    for (long k = outer[j]; k < outer[j + 1]; ++k)
+      if (inner[k] >= j) {
+        s.irn.push_back(static_cast<MUMPS_INT>(inner[k] + 1));
+        s.jcn.push_back(static_cast<MUMPS_INT>(j + 1));
+        s.pos.push_back(k);
+      }
+  s.values.resize(s.pos.size());
+  for (std::size_t k = 0; k < s.pos.size(); ++k) s.values[k] = a.valuePtr()[s.pos[k]];
+  s.id.n = static_cast<MUMPS_INT>(s.n);
+  s.id.nnz = static_cast<MUMPS_INT8>(s.pos.size());
+  s.id.irn = s.irn.data();
+  s.id.jcn = s.jcn.data();
+  s.id.a = reinterpret_cast<ZMUMPS_COMPLEX*>(s.values.data());
+  switch (s.ordering) {
+    case LdltOrdering::amd: s.id.icntl[icntl(7)] = 0; break;
+    case LdltOrdering::scotch: s.id.icntl[icntl(7)] = 3; break;
+    case LdltOrdering::pord: s.id.icntl[icntl(7)] = 4; break;
+    case LdltOrdering::automatic: s.id.icntl[icntl(7)] = 7; break;
+  }
+  s.schur_list.clear();
+  for (long v : schur) {
+    if (v < 0 || v >= s.n) throw ComplexSolveError("ComplexLdlt: Schur unknown out of range");
+    s.schur_list.push_back(static_cast<MUMPS_INT>(v + 1));
+  }
+  const auto ns = static_cast<long>(s.schur_list.size());
+  if (ns > 0) {
+    // The complete Schur complement (both triangles), column-major, on this single process.
+    s.id.icntl[icntl(19)] = 3;
+    s.id.size_schur = static_cast<MUMPS_INT>(ns);
+    s.id.listvar_schur = s.schur_list.data();
+    s.id.nprow = s.id.npcol = 1;
+    s.id.mblock = s.id.nblock = 100;
+    s.id.schur_lld = static_cast<MUMPS_INT>(ns);
+    s.schur_buffer.assign(static_cast<std::size_t>(ns * ns), 0.0);
+    s.id.schur = reinterpret_cast<ZMUMPS_COMPLEX*>(s.schur_buffer.data());
+  } else {
+    s.id.icntl[icntl(19)] = 0;
+    s.id.size_schur = 0;
+    s.id.listvar_schur = nullptr;
+    s.id.schur = nullptr;
+  }
+  const auto t0 = Clock::now();
+  s.call(1);
+  s.analyse_s = seconds_since(t0);
+  if (s.info1() < 0) throw ComplexSolveError(mumps_error("analysis", s.info1(), s.info2()));
+  s.analysed = true;
+  s.factorised = false;
+}
+
+void ComplexLdlt::factorize(const ComplexMatrix& a) {
+  Impl& s = *impl_;
+  if (!s.analysed) analyze(a);
+  if (a.rows() != s.n) throw ComplexSolveError("ComplexLdlt: matrix size differs from the analysed one");
+  for (std::size_t k = 0; k < s.pos.size(); ++k) s.values[k] = a.valuePtr()[s.pos[k]];
+  s.id.a = reinterpret_cast<ZMUMPS_COMPLEX*>(s.values.data());
+  const auto t0 = Clock::now();
+  s.factorised = s.reduced = false;
+  for (int attempt = 0;; ++attempt) {
+    s.call(2);
+    const int e = s.info1();
+    const bool short_space = e == -8 || e == -9 || e == -14 || e == -15;
+    if (!(short_space && attempt < 4)) break;
+    // MUMPS's workspace estimate proved short (possible with delayed pivots): allow more.
+    s.id.icntl[icntl(14)] = 2 * std::max<MUMPS_INT>(s.id.icntl[icntl(14)], 20);
+  }
+  s.factor_s = seconds_since(t0);
+  if (s.info1() < 0) throw ComplexSolveError(mumps_error("factorisation", s.info1(), s.info2()));
+  s.factorised = true;
+  const long ns = schur_size();
+  if (ns > 0) s.schur = Eigen::Map<const Eigen::MatrixXcd>(s.schur_buffer.data(), ns, ns);
+}
+
+Eigen::MatrixXcd ComplexLdlt::solve(const Eigen::MatrixXcd& b) {
+  Impl& s = *impl_;
+  if (!s.factorised) throw ComplexSolveError("ComplexLdlt::solve called before a successful factorize");
+  if (schur_size() > 0) throw ComplexSolveError("ComplexLdlt::solve: use reduce and expand with a Schur set");
+  if (b.rows() != s.n) throw ComplexSolveError("ComplexLdlt::solve: right-hand side of the wrong size");
+  s.rhs = b;
+  s.id.rhs = reinterpret_cast<ZMUMPS_COMPLEX*>(s.rhs.data());
+  s.id.nrhs = static_cast<MUMPS_INT>(b.cols());
+  s.id.lrhs = static_cast<MUMPS_INT>(s.n);
+  s.id.icntl[icntl(26)] = 0;
+  s.call(3);
+  if (s.info1() < 0) throw ComplexSolveError(mumps_error("solve", s.info1(), s.info2()));
+  return s.rhs;
+}
+
+const Eigen::MatrixXcd& ComplexLdlt::schur() const { return impl_->schur; }
+
+Eigen::MatrixXcd ComplexLdlt::reduce(const Eigen::MatrixXcd& b) {
+  Impl& s = *impl_;
+  if (!s.factorised || schur_size() == 0) throw ComplexSolveError("ComplexLdlt::reduce needs a factorisation with a Schur set");
+  if (b.rows() != s.n) throw ComplexSolveError("ComplexLdlt::reduce: right-hand side of the wrong size");
+  s.rhs = b;
+  s.reduced_rhs.setZero(schur_size(), b.cols());
+  s.id.rhs = reinterpret_cast<ZMUMPS_COMPLEX*>(s.rhs.data());
+  s.id.nrhs = static_cast<MUMPS_INT>(b.cols());
+  s.id.lrhs = static_cast<MUMPS_INT>(s.n);
+  s.id.redrhs = reinterpret_cast<ZMUMPS_COMPLEX*>(s.reduced_rhs.data());
+  s.id.lredrhs = static_cast<MUMPS_INT>(schur_size());
+  s.id.icntl[icntl(26)] = 1;
+  s.call(3);
+  s.id.icntl[icntl(26)] = 0;
+  if (s.info1() < 0) throw ComplexSolveError(mumps_error("reduction", s.info1(), s.info2()));
+  s.reduced = true;
+  return s.reduced_rhs;
+}
+
+Eigen::MatrixXcd ComplexLdlt::expand(const Eigen::MatrixXcd& x_schur) {
+  Impl& s = *impl_;
+  if (!s.reduced) throw ComplexSolveError("ComplexLdlt::expand must follow reduce");
+  if (x_schur.rows() != schur_size() || x_schur.cols() != s.rhs.cols())
+    throw ComplexSolveError("ComplexLdlt::expand: Schur solutions of the wrong shape");
+  s.reduced_rhs = x_schur;
+  s.id.rhs = reinterpret_cast<ZMUMPS_COMPLEX*>(s.rhs.data());
+  s.id.redrhs = reinterpret_cast<ZMUMPS_COMPLEX*>(s.reduced_rhs.data());
+  s.id.icntl[icntl(26)] = 2;
+  s.call(3);
+  s.id.icntl[icntl(26)] = 0;
+  s.reduced = false;
+  if (s.info1() < 0) throw ComplexSolveError(mumps_error("expansion", s.info1(), s.info2()));
+  return s.rhs;
+}
+
+bool ComplexLdlt::analysed() const { return impl_->analysed; }
+long ComplexLdlt::schur_size() const { return static_cast<long>(impl_->schur_list.size()); }
+
+double ComplexLdlt::factor_nonzeros() const {
+  const int e = impl_->id.infog[icntl(29)];
+  return e >= 0 ? e : -1e6 * e;
+}
+
+double ComplexLdlt::flops() const { return impl_->id.rinfog[icntl(3)]; }
+
+double ComplexLdlt::peak_bytes() const {
+  const double schur_bytes = 16.0 * static_cast<double>(impl_->schur_buffer.size());
+  return 1e6 * impl_->id.infog[icntl(22)] + schur_bytes;
+}
+
+double ComplexLdlt::analyse_seconds() const { return impl_->analyse_s; }
+double ComplexLdlt::factorize_seconds() const { return impl_->factor_s; }
+
+}  // namespace voidsign::solver
