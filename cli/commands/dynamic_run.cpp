@@ -585,7 +585,7 @@ nlohmann::json harmonic_summary(const HarmonicRun& run, const Scenario& s, const
   j["residual"] = res;
   j["residual_reference"] = r.reference.residual;
   j["residual_voids"] = r.voided.residual;
-  j["linear_solver"] = "UMFPACK complex sparse LU, symbolic analysis reused over frequencies";
+  j["linear_solver"] = r.linear_solver;
   j["loop"] = r.loop;
   j["absorbing"] = {{"kind", "PML"},
                     {"thickness", run.pml_thickness},

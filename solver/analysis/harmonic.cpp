@@ -6,8 +6,9 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <Eigen/Dense>
+#include <Eigen/SparseLU>
 #include <exception>
-#include <fstream>
 #include <limits>
 #include <memory>
 #include <numbers>
@@ -16,6 +17,7 @@
 
 #include "solver/analysis/plane_wave.hpp"
 #include "solver/assembly/system.hpp"
+#include "solver/la/complex_ldlt.hpp"
 
 namespace voidsign::solver {
 
@@ -88,6 +90,7 @@ double fastest_p_speed(const std::vector<HarmonicLayer>& layers) {
 namespace {
 
 using Clock = std::chrono::steady_clock;
+using SparseMatrixC = Eigen::SparseMatrix<Complex>;
 double seconds_since(Clock::time_point t0) { return std::chrono::duration<double>(Clock::now() - t0).count(); }
 
 std::array<double, 3> corner_centroid(const mesh::Mesh& m, std::size_t c) {
@@ -184,6 +187,10 @@ struct Setup {
   std::vector<char> inside;    // per node: in the DRM box (total field)
   std::vector<char> physical;  // per node: belongs to a cell outside the PML
   std::vector<int> outputs;
+  // Shared factorisation (setup_shared): void-boundary and void-interior unknowns, and each
+  // unknown's index in Γ followed by I (−1 elsewhere). Γ empty: each model factorised alone.
+  std::vector<long> gamma, interior;
+  std::vector<long> plug_local;
 };
 
 const HarmonicLayer& layer_of(const Setup& s, std::size_t c) {
@@ -372,65 +379,271 @@ void assemble_model(const Setup& s, double omega, bool voided, ComplexMatrix& a)
   }
 }
 
-struct Unit {
-  std::size_t freq;
-  bool voided;
+// The solver state of one thread: a factorisation and the matrix storage it reads.
+struct Worker {
+  explicit Worker(const Setup& s) : ldlt(s.p->ordering), a(s.pattern) {}
+  ComplexLdlt ldlt;
+  ComplexMatrix a;
 };
 
-// One (frequency, model) factorisation with the given solver and matrix storage, and a solve per
-// load case.
-void solve_unit(const Setup& s, const Unit& u, ComplexLu& lu, ComplexMatrix& a, HarmonicResult& r) {
+[[noreturn]] void fail(const HarmonicProblem& p, std::size_t freq, const char* model, const std::string& what) {
+  std::ostringstream os;
+  os << "harmonic " << model << " at " << p.frequencies_hz[freq] << " Hz: " << what;
+  throw SolveFailure(os.str());
+}
+
+// The right-hand sides of every load case at ω, one column each (constraints not yet applied).
+Eigen::MatrixXcd load_columns(const Setup& s, double omega) {
+  Eigen::MatrixXcd f(s.nd, static_cast<long>(s.cases.size()));
+  for (std::size_t c = 0; c < s.cases.size(); ++c) f.col(static_cast<long>(c)) = right_hand_side(s, omega, s.cases[c]);
+  return f;
+}
+
+void zero_fixed(const std::vector<char>& fixed, Eigen::MatrixXcd& f) {
+  for (long j = 0; j < f.rows(); ++j)
+    if (fixed[static_cast<std::size_t>(j)]) f.row(j).setZero();
+}
+
+// Keeps the output nodes of solution x of load case c; outside the DRM box adds the free field
+// back to the scattered field.
+void store_case(const Setup& s, double omega, std::size_t freq, std::size_t c, const Eigen::Ref<const ComplexVector>& x,
+                HarmonicModel& model) {
+  const HarmonicProblem& p = *s.p;
+  const Setup::Case& lc = s.cases[c];
+  ComplexVector out(static_cast<long>(s.outputs.size()) * s.d);
+  std::unique_ptr<IncidentField> field;
+  if (lc.load.source == HarmonicProblem::Source::plane_wave)
+    field = std::make_unique<IncidentField>(p.layers, lc.load.wave, omega, s.m->dim() == 3);
+  for (std::size_t k = 0; k < s.outputs.size(); ++k) {
+    const auto n = static_cast<std::size_t>(s.outputs[k]);
+    for (int j = 0; j < s.d; ++j) out[static_cast<long>(k) * s.d + j] = x[static_cast<long>(n) * s.d + j];
+    if (field && !s.inside[n] && s.physical[n]) {
+      Complex u0[3];
+      free_field_at(s, *field, n, u0);
+      for (int j = 0; j < s.d; ++j) out[static_cast<long>(k) * s.d + j] += u0[j];
+    }
+  }
+  (c == 0 ? model.u[freq] : model.u_extra[c - 1][freq]) = std::move(out);
+}
+
+double worst_residual(const ComplexMatrix& a, const Eigen::MatrixXcd& x, const Eigen::MatrixXcd& f) {
+  double worst = 0;
+  for (long c = 0; c < f.cols(); ++c) worst = std::max(worst, complex_relative_residual(a, x.col(c), f.col(c)));
+  return worst;
+}
+
+// One model at one frequency on its own factorisation, every load case, one refinement step
+// when a residual is too large.
+void solve_separate(const Setup& s, std::size_t freq, bool voided, Worker& w, HarmonicResult& r) {
   const auto t0 = Clock::now();
   const HarmonicProblem& p = *s.p;
-  const double omega = 2 * std::numbers::pi * p.frequencies_hz[u.freq];
-  assemble_model(s, omega, u.voided, a);
-  const std::vector<char>& fixed = u.voided ? s.fixed_void : s.fixed_ref;
-  if (!lu.analysed()) lu.analyze(a);
-  HarmonicModel& model = u.voided ? r.voided : r.reference;
-  const auto fail = [&](const char* what) {
-    std::ostringstream os;
-    os << "harmonic " << (u.voided ? "model with voids" : "model without voids") << " at " << p.frequencies_hz[u.freq]
-       << " Hz: " << what;
-    throw SolveFailure(os.str());
-  };
+  const char* name = voided ? "model with voids" : "model without voids";
+  const double omega = 2 * std::numbers::pi * p.frequencies_hz[freq];
+  assemble_model(s, omega, voided, w.a);
+  Eigen::MatrixXcd f = load_columns(s, omega);
+  zero_fixed(voided ? s.fixed_void : s.fixed_ref, f);
+  Eigen::MatrixXcd x;
   try {
-    lu.factorize(a);
+    if (!w.ldlt.analysed()) w.ldlt.analyze(w.a, {}, s.d);
+    w.ldlt.factorize(w.a);
+    x = w.ldlt.solve(f);
+    if (worst_residual(w.a, x, f) > p.max_residual) x += w.ldlt.solve(f - w.a * x);
   } catch (const ComplexSolveError& e) {
-    fail(e.what());
+    fail(p, freq, name, e.what());
   }
-  double worst = 0;
-  for (std::size_t c = 0; c < s.cases.size(); ++c) {
-    const Setup::Case& lc = s.cases[c];
-    ComplexVector f = right_hand_side(s, omega, lc);
-    for (long j = 0; j < s.nd; ++j)
-      if (fixed[static_cast<std::size_t>(j)]) f[j] = 0;
-    ComplexSolution sol;
-    try {
-      sol = lu.solve_checked(f, p.max_residual);
-    } catch (const ComplexSolveError& e) {
-      fail(e.what());
-    }
-    worst = std::max(worst, sol.residual);
-    // Keep the output nodes; outside the DRM box add the free field back to the scattered field.
-    const mesh::Mesh& m = *s.m;
-    ComplexVector out(static_cast<long>(s.outputs.size()) * s.d);
-    std::unique_ptr<IncidentField> field;
-    if (lc.load.source == HarmonicProblem::Source::plane_wave)
-      field = std::make_unique<IncidentField>(p.layers, lc.load.wave, omega, m.dim() == 3);
-    for (std::size_t k = 0; k < s.outputs.size(); ++k) {
-      const auto n = static_cast<std::size_t>(s.outputs[k]);
-      for (int j = 0; j < s.d; ++j) out[static_cast<long>(k) * s.d + j] = sol.x[static_cast<long>(n) * s.d + j];
-      if (field && !s.inside[n] && s.physical[n]) {
-        Complex u0[3];
-        free_field_at(s, *field, n, u0);
-        for (int j = 0; j < s.d; ++j) out[static_cast<long>(k) * s.d + j] += u0[j];
+  const double worst = worst_residual(w.a, x, f);
+  if (!(worst <= p.max_residual))
+    fail(p, freq, name, "relative residual " + std::to_string(worst) + " above the limit: the system is singular or badly conditioned");
+  HarmonicModel& model = voided ? r.voided : r.reference;
+  for (std::size_t c = 0; c < s.cases.size(); ++c) store_case(s, omega, freq, c, x.col(static_cast<long>(c)), model);
+  model.residual[freq] = worst;
+  model.seconds[freq] = seconds_since(t0);
+  model.factor_seconds[freq] = w.ldlt.factorize_seconds();
+}
+
+// The void cells' dynamic stiffness at ω on the void unknowns V = Γ ∪ I (local numbering of
+// Setup::plug_local), split into its blocks.
+struct Plug {
+  SparseMatrixC bb, bi, ii;
+  std::unique_ptr<Eigen::SparseLU<SparseMatrixC>> ii_lu;  // null when I is empty
+  Eigen::MatrixXcd z;                                     // P_ΓΓ − P_ΓI P_II⁻¹ P_IΓ
+};
+
+Plug plug_at(const Setup& s, double omega) {
+  const mesh::Mesh& m = *s.m;
+  const int nd = m.npc() * s.d;
+  const long nb = static_cast<long>(s.gamma.size()), ni = static_cast<long>(s.interior.size());
+  std::vector<Eigen::Triplet<Complex>> tbb, tbi, tii;
+  std::vector<double> ke(static_cast<std::size_t>(nd * nd)), me(ke.size());
+  std::vector<long> loc(static_cast<std::size_t>(nd));
+  const double w2 = omega * omega;
+  for (std::size_t c : s.void_cells) {
+    const HarmonicLayer& l = layer_of(s, c);
+    dynamic_parts(m, c, l.elastic, s.p->kinematics, ke, me);
+    const int* v = m.cell(c);
+    for (int a = 0; a < m.npc(); ++a)
+      for (int j = 0; j < s.d; ++j) loc[static_cast<std::size_t>(s.d * a + j)] = s.plug_local[static_cast<std::size_t>(s.d * v[a] + j)];
+    const Complex fac = hysteretic_factor(l.damping);
+    for (int rr = 0; rr < nd; ++rr)
+      for (int cc = 0; cc < nd; ++cc) {
+        const long i = loc[static_cast<std::size_t>(rr)], j = loc[static_cast<std::size_t>(cc)];
+        const auto k = static_cast<std::size_t>(rr * nd + cc);
+        const Complex val = fac * ke[k] - w2 * me[k];
+        if (i < nb && j < nb) tbb.emplace_back(static_cast<int>(i), static_cast<int>(j), val);
+        else if (i < nb) tbi.emplace_back(static_cast<int>(i), static_cast<int>(j - nb), val);
+        else if (j >= nb) tii.emplace_back(static_cast<int>(i - nb), static_cast<int>(j - nb), val);
       }
-    }
-    (c == 0 ? model.u[u.freq] : model.u_extra[c - 1][u.freq]) = std::move(out);
   }
-  model.residual[u.freq] = worst;
-  model.seconds[u.freq] = seconds_since(t0);
-  model.factor_seconds[u.freq] = lu.factorize_seconds();
+  Plug pl;
+  pl.bb.resize(nb, nb);
+  pl.bb.setFromTriplets(tbb.begin(), tbb.end());
+  pl.bi.resize(nb, ni);
+  pl.bi.setFromTriplets(tbi.begin(), tbi.end());
+  pl.ii.resize(ni, ni);
+  pl.ii.setFromTriplets(tii.begin(), tii.end());
+  pl.z = Eigen::MatrixXcd(pl.bb);
+  if (ni > 0) {
+    pl.ii_lu = std::make_unique<Eigen::SparseLU<SparseMatrixC>>();
+    pl.ii.makeCompressed();
+    pl.ii_lu->compute(pl.ii);
+    if (pl.ii_lu->info() != Eigen::Success) throw ComplexSolveError("the void interior's dynamic stiffness is singular");
+    const Eigen::MatrixXcd w = pl.ii_lu->solve(Eigen::MatrixXcd(SparseMatrixC(pl.bi.transpose())));
+    pl.z -= pl.bi * w;
+  }
+  return pl;
+}
+
+// Both models at one frequency on one factorisation. The model with voids is factorised with its
+// void-boundary unknowns Γ left as a dense Schur complement S; the model without voids differs
+// from it only by the void cells (on Γ and the void interior I, which the model with voids
+// fixes), whose stiffness condensed on Γ is Z (plug_at). So S⁻¹ solves the model with voids and
+// (S + Z)⁻¹ the one without, both around the same forward and back substitutions.
+void solve_shared(const Setup& s, std::size_t freq, Worker& w, HarmonicResult& r) {
+  const auto t0 = Clock::now();
+  const HarmonicProblem& p = *s.p;
+  const double omega = 2 * std::numbers::pi * p.frequencies_hz[freq];
+  assemble_model(s, omega, true, w.a);
+  const Eigen::MatrixXcd f = load_columns(s, omega);
+  Eigen::MatrixXcd fv = f, fr = f;
+  zero_fixed(s.fixed_void, fv);
+  zero_fixed(s.fixed_ref, fr);
+  const long nb = static_cast<long>(s.gamma.size()), ni = static_cast<long>(s.interior.size());
+  const long nc = f.cols();
+  Eigen::MatrixXcd xv, xr;
+  try {
+    if (!w.ldlt.analysed()) w.ldlt.analyze(w.a, s.gamma, s.d);
+    w.ldlt.factorize(w.a);
+    const Plug pl = plug_at(s, omega);
+    const Eigen::PartialPivLU<Eigen::MatrixXcd> lu_void(w.ldlt.schur());
+    const Eigen::PartialPivLU<Eigen::MatrixXcd> lu_ref(w.ldlt.schur() + pl.z);
+    const auto gather_interior = [&](const Eigen::MatrixXcd& v) {
+      Eigen::MatrixXcd out(ni, v.cols());
+      for (long k = 0; k < ni; ++k) out.row(k) = v.row(s.interior[static_cast<std::size_t>(k)]);
+      return out;
+    };
+    // Solutions of both models for right-hand sides gv (model with voids) and gr (without).
+    const auto solve_both = [&](const Eigen::MatrixXcd& gv, const Eigen::MatrixXcd& gr, Eigen::MatrixXcd& uv, Eigen::MatrixXcd& ur) {
+      // The matrix factorised is the model with voids, whose rows on I are unit constraints and
+      // whose right-hand sides there are zero: g_v serves both models, and the model without
+      // voids' own loads on I (if any) enter through the plug.
+      Eigen::MatrixXcd both(s.nd, 2 * nc);
+      both << gv, gv;
+      const Eigen::MatrixXcd y = w.ldlt.reduce(both);
+      Eigen::MatrixXcd yr = y.rightCols(nc);
+      Eigen::MatrixXcd fi, wi;
+      if (ni > 0) {
+        fi = gather_interior(gr);
+        wi = pl.ii_lu->solve(fi);
+        yr -= pl.bi * wi;
+      }
+      Eigen::MatrixXcd xg(nb, 2 * nc);
+      xg.leftCols(nc) = lu_void.solve(y.leftCols(nc));
+      xg.rightCols(nc) = lu_ref.solve(yr);
+      const Eigen::MatrixXcd x = w.ldlt.expand(xg);
+      uv = x.leftCols(nc);
+      ur = x.rightCols(nc);
+      if (ni > 0) {
+        const Eigen::MatrixXcd ui = pl.ii_lu->solve(fi - SparseMatrixC(pl.bi.transpose()) * xg.rightCols(nc));
+        for (long k = 0; k < ni; ++k) ur.row(s.interior[static_cast<std::size_t>(k)]) = ui.row(k);
+      }
+    };
+    // The model without voids' residual: its matrix is the one factorised plus the plug, less
+    // the unit constraints on I.
+    const auto residual_ref = [&](const Eigen::MatrixXcd& x) {
+      Eigen::MatrixXcd res = w.a * x - fr;
+      Eigen::MatrixXcd xb(nb, nc), xi(ni, nc);
+      for (long k = 0; k < nb; ++k) xb.row(k) = x.row(s.gamma[static_cast<std::size_t>(k)]);
+      for (long k = 0; k < ni; ++k) xi.row(k) = x.row(s.interior[static_cast<std::size_t>(k)]);
+      const Eigen::MatrixXcd rb = pl.bb * xb + pl.bi * xi;
+      for (long k = 0; k < nb; ++k) res.row(s.gamma[static_cast<std::size_t>(k)]) += rb.row(k);
+      if (ni > 0) {
+        const Eigen::MatrixXcd ri = SparseMatrixC(pl.bi.transpose()) * xb + pl.ii * xi - gather_interior(fr);
+        for (long k = 0; k < ni; ++k) res.row(s.interior[static_cast<std::size_t>(k)]) = ri.row(k);
+      }
+      return res;
+    };
+    const auto relative = [](const Eigen::MatrixXcd& res, const Eigen::MatrixXcd& rhs) {
+      double worst = 0;
+      for (long c = 0; c < rhs.cols(); ++c) {
+        const double scale = rhs.col(c).norm();
+        worst = std::max(worst, scale > 0 ? res.col(c).norm() / scale : res.col(c).norm());
+      }
+      return worst;
+    };
+    solve_both(fv, fr, xv, xr);
+    Eigen::MatrixXcd res_v = w.a * xv - fv, res_r = residual_ref(xr);
+    if (relative(res_v, fv) > p.max_residual || relative(res_r, fr) > p.max_residual) {
+      Eigen::MatrixXcd dv, dr;
+      solve_both(-res_v, -res_r, dv, dr);
+      xv += dv;
+      xr += dr;
+      res_v = w.a * xv - fv;
+      res_r = residual_ref(xr);
+    }
+    r.voided.residual[freq] = relative(res_v, fv);
+    r.reference.residual[freq] = relative(res_r, fr);
+  } catch (const ComplexSolveError& e) {
+    fail(p, freq, "models with and without voids", e.what());
+  }
+  for (HarmonicModel* model : {&r.voided, &r.reference})
+    if (!(model->residual[freq] <= p.max_residual))
+      fail(p, freq, model == &r.voided ? "model with voids" : "model without voids",
+           "relative residual " + std::to_string(model->residual[freq]) +
+               " above the limit: the system is singular or badly conditioned");
+  for (std::size_t c = 0; c < s.cases.size(); ++c) {
+    store_case(s, omega, freq, c, xv.col(static_cast<long>(c)), r.voided);
+    store_case(s, omega, freq, c, xr.col(static_cast<long>(c)), r.reference);
+  }
+  r.reference.seconds[freq] = seconds_since(t0);
+  r.reference.factor_seconds[freq] = w.ldlt.factorize_seconds();
+}
+
+// Γ (void-boundary unknowns) and I (void-interior unknowns) for the shared factorisation, or
+// empty when it does not apply: no voids, Γ too large for a dense Schur complement, or void
+// unknowns on the fixed outer boundary.
+void setup_shared(Setup& s) {
+  const HarmonicProblem& p = *s.p;
+  const mesh::Mesh& m = *s.m;
+  if (!p.with_voids || !p.share_factorisation || s.void_cells.empty()) return;
+  std::vector<char> in_void(m.n_nodes(), 0), in_active(m.n_nodes(), 0);
+  for (std::size_t c = 0; c < m.n_cells(); ++c)
+    for (int a = 0; a < m.npc(); ++a) (m.void_id[c] >= 0 ? in_void : in_active)[static_cast<std::size_t>(m.cell(c)[a])] = 1;
+  std::vector<long> gamma, interior;
+  for (std::size_t n = 0; n < m.n_nodes(); ++n) {
+    if (!in_void[n]) continue;
+    for (int j = 0; j < s.d; ++j) {
+      const long dof = static_cast<long>(n) * s.d + j;
+      if (s.fixed_ref[static_cast<std::size_t>(dof)]) return;
+      (in_active[n] ? gamma : interior).push_back(dof);
+    }
+  }
+  if (static_cast<long>(gamma.size()) > p.max_shared_boundary) return;
+  s.gamma = std::move(gamma);
+  s.interior = std::move(interior);
+  s.plug_local.assign(static_cast<std::size_t>(s.nd), -1);
+  for (std::size_t k = 0; k < s.gamma.size(); ++k) s.plug_local[static_cast<std::size_t>(s.gamma[k])] = static_cast<long>(k);
+  for (std::size_t k = 0; k < s.interior.size(); ++k)
+    s.plug_local[static_cast<std::size_t>(s.interior[k])] = static_cast<long>(s.gamma.size() + k);
 }
 
 // Validation, band, constraints, sources, pattern and the frequency-independent parts.
@@ -529,6 +742,7 @@ void prepare(const HarmonicProblem& p, Setup& s, HarmonicResult& r) {
       if (n < 0 || static_cast<std::size_t>(n) >= m.n_nodes()) throw std::invalid_argument("harmonic: bad output node");
   }
   r.output_nodes = s.outputs;
+  setup_shared(s);
 
   // Pattern (shared by every frequency and both models) and the frequency-independent parts.
   const auto t_setup = Clock::now();
@@ -569,16 +783,6 @@ void prepare(const HarmonicProblem& p, Setup& s, HarmonicResult& r) {
   r.setup_seconds = seconds_since(t_setup);
 }
 
-double available_bytes() {
-  std::ifstream in("/proc/meminfo");
-  std::string key;
-  double value = 0;
-  std::string unit;
-  while (in >> key >> value >> unit)
-    if (key == "MemAvailable:") return value * 1024;
-  return 0;
-}
-
 }  // namespace
 
 HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress) {
@@ -591,7 +795,6 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
   report("pattern", 0);
   prepare(p, s, r);
   report("pattern", 1);
-  const long nnz = s.pattern.nonZeros();
   const std::size_t nf = p.frequencies_hz.size();
   for (HarmonicModel* model : {&r.reference, &r.voided}) {
     if (model == &r.voided && !p.with_voids) break;
@@ -601,32 +804,42 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
     model->seconds.assign(nf, 0.0);
     model->factor_seconds.assign(nf, 0.0);
   }
+  const bool shared = !s.gamma.empty();
+  r.shared_boundary = s.gamma.size();
+  // A unit of work: one frequency, both models on one factorisation (shared) or one model.
+  struct Unit {
+    std::size_t freq;
+    bool voided;
+  };
   std::vector<Unit> units;
   for (std::size_t f = 0; f < nf; ++f) {
     units.push_back({f, false});
-    if (p.with_voids) units.push_back({f, true});
+    if (p.with_voids && !shared) units.push_back({f, true});
   }
+  const auto run_unit = [&](const Unit& u, Worker& w) {
+    if (shared)
+      solve_shared(s, u.freq, w, r);
+    else
+      solve_separate(s, u.freq, u.voided, w, r);
+  };
 
-  std::vector<std::unique_ptr<ComplexLu>> solvers;
-  std::vector<ComplexMatrix> matrices;
-  solvers.push_back(std::make_unique<ComplexLu>(p.ordering));
-  matrices.push_back(s.pattern);
+  std::vector<std::unique_ptr<Worker>> workers;
+  workers.push_back(std::make_unique<Worker>(s));
   std::size_t done = 0;
   auto tick = [&] {
     ++done;
     report("harmonic", static_cast<double>(done) / static_cast<double>(units.size()));
   };
 
-  // Frequencies in parallel, one factorisation per thread and a single-threaded BLAS, was faster
-  // on 2 cores than one factorisation at a time with a multithreaded BLAS at every size measured,
-  // and a single solve was faster with one BLAS thread too (docs/theory.md); only
-  // FrequencyLoop::sequential keeps the BLAS's own threads. The first solve runs alone: it
-  // measures the factor's memory, and parallel runs only if one factor per thread fits in 60 %
-  // of the available memory (FrequencyLoop::parallel skips that check).
+  // MUMPS runs one call at a time in a process (solver/la/complex_ldlt.hpp), so a parallel loop
+  // only overlaps the rest of a frequency's work (assembly, loads, the dense Schur systems,
+  // residuals, outputs) with another frequency's factorisation, on a single-threaded BLAS. On
+  // 2 cores one frequency at a time with the BLAS's two threads was faster (docs/theory.md), so
+  // `automatic` runs sequentially. FrequencyLoop::parallel (first unit alone, to measure the
+  // factor's memory, then one worker per thread) exists for comparison.
   const int n_threads = std::min<int>(omp_get_max_threads(), static_cast<int>(units.size()));
-  const bool single_blas = p.loop != FrequencyLoop::sequential;
-  const bool want_parallel = single_blas && n_threads > 1;
-  const int blas_before = single_blas ? set_blas_threads(1) : 0;
+  const bool want_parallel = p.loop == FrequencyLoop::parallel && n_threads > 1;
+  const int blas_before = want_parallel ? set_blas_threads(1) : 0;
   struct BlasRestore {
     int n;
     ~BlasRestore() {
@@ -636,25 +849,20 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
   std::size_t next = 0;
   bool parallel = false;
   if (want_parallel) {
-    solve_unit(s, units[0], *solvers[0], matrices[0], r);
+    run_unit(units[0], *workers[0]);
     tick();
     next = 1;
-    const double need = n_threads * (solvers[0]->peak_bytes() + 24.0 * static_cast<double>(nnz));
-    const double avail = available_bytes();
-    parallel = p.loop == FrequencyLoop::parallel || avail <= 0 || need < 0.6 * avail;
+    parallel = true;
   }
   if (!parallel) {
-    r.loop = single_blas ? "sequential, single-threaded BLAS" : "sequential, multithreaded BLAS";
+    r.loop = "sequential";
     for (std::size_t i = next; i < units.size(); ++i) {
-      solve_unit(s, units[i], *solvers[0], matrices[0], r);
+      run_unit(units[i], *workers[0]);
       tick();
     }
   } else {
     r.loop = "parallel (" + std::to_string(n_threads) + " threads)";
-    for (int t = 1; t < n_threads; ++t) {
-      solvers.push_back(std::make_unique<ComplexLu>(p.ordering));
-      matrices.push_back(s.pattern);
-    }
+    for (int t = 1; t < n_threads; ++t) workers.push_back(std::make_unique<Worker>(s));
     std::exception_ptr error;
     const long n_units = static_cast<long>(units.size());
 #pragma omp parallel num_threads(n_threads)
@@ -663,7 +871,7 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
 #pragma omp for schedule(dynamic, 1)
       for (long i = static_cast<long>(next); i < n_units; ++i) {
         try {
-          solve_unit(s, units[static_cast<std::size_t>(i)], *solvers[t], matrices[t], r);
+          run_unit(units[static_cast<std::size_t>(i)], *workers[t]);
 #pragma omp critical(harmonic_progress)
           tick();
         } catch (...) {
@@ -674,11 +882,17 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
     }
     if (error) std::rethrow_exception(error);
   }
-  for (const auto& sv : solvers) {
-    r.analyse_seconds += sv->analyse_seconds();
-    r.factor_nonzeros = std::max(r.factor_nonzeros, sv->factor_nonzeros());
-    r.peak_bytes = std::max(r.peak_bytes, sv->peak_bytes());
+  for (const auto& w : workers) {
+    r.analyse_seconds += w->ldlt.analyse_seconds();
+    r.factor_nonzeros = std::max(r.factor_nonzeros, w->ldlt.factor_nonzeros());
+    r.peak_bytes = std::max(r.peak_bytes, w->ldlt.peak_bytes());
   }
+  std::ostringstream solver;
+  solver << "MUMPS complex symmetric LDLT, symbolic analysis reused over frequencies";
+  if (shared)
+    solver << "; both models on one factorisation per frequency (dense Schur complement on the " << s.gamma.size()
+           << " void-boundary unknowns)";
+  r.linear_solver = solver.str();
   r.total_seconds = seconds_since(t_start);
   return r;
 }

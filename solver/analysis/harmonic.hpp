@@ -34,6 +34,7 @@
 #include "solver/analysis/static.hpp"
 #include "solver/fe/element.hpp"
 #include "solver/fe/pml.hpp"
+#include "solver/la/complex_ldlt.hpp"
 #include "solver/la/complex_solver.hpp"
 
 namespace voidsign::solver {
@@ -92,10 +93,10 @@ struct PlaneWave {
 
 /// How the frequencies are spread over the cores.
 enum class FrequencyLoop {
-  automatic,   ///< parallel where one factor per thread fits in memory, else one at a time;
-               ///< single-threaded BLAS either way (the faster choice measured, docs/theory.md)
-  sequential,  ///< one factorisation at a time, the BLAS using its own threads
-  parallel     ///< one factorisation per core at a time, single-threaded BLAS, no memory check
+  automatic,   ///< = sequential: the faster choice measured on 2 cores (docs/theory.md)
+  sequential,  ///< one frequency at a time, the BLAS under MUMPS using its own threads
+  parallel     ///< one worker per thread, single-threaded BLAS; MUMPS's calls still run one at a
+               ///< time, so only the rest of each frequency's work overlaps
 };
 
 struct HarmonicProblem {
@@ -129,7 +130,12 @@ struct HarmonicProblem {
   bool with_voids = true;         ///< also solve the model with voids
   std::vector<int> output_nodes;  ///< nodes whose displacements are kept; empty = all
   FrequencyLoop loop = FrequencyLoop::automatic;
-  ComplexOrdering ordering = ComplexOrdering::automatic;
+  LdltOrdering ordering = LdltOrdering::automatic;
+  /// Solve both models on one factorisation per frequency (solve_harmonic; docs/theory.md) where
+  /// the void-boundary unknowns number at most max_shared_boundary (their Schur complement is
+  /// dense); otherwise, or when false, each model is factorised on its own.
+  bool share_factorisation = true;
+  long max_shared_boundary = 3000;
   double max_residual = 1e-8;  ///< ‖S u − f‖/‖f‖ above which a solve is rejected (SolveFailure)
 };
 
@@ -143,8 +149,10 @@ struct HarmonicModel {
   /// The same for each of HarmonicProblem::extra_cases: u_extra[case][frequency].
   std::vector<std::vector<ComplexVector>> u_extra;
   std::vector<double> residual;  ///< per frequency, ‖S u − f‖/‖f‖, worst over the load cases
-  std::vector<double> seconds;   ///< per frequency: assembly + factorisation + solve, wall time
-  std::vector<double> factor_seconds;  ///< per frequency: the numeric factorisation alone
+  /// Per frequency: assembly + factorisation + solve, wall time. With a shared factorisation the
+  /// frequency's whole time is on the model without voids and the model with voids shows 0.
+  std::vector<double> seconds;
+  std::vector<double> factor_seconds;  ///< per frequency: the numeric factorisation alone (likewise)
   std::vector<char> active;      ///< per cell
 };
 
@@ -172,8 +180,10 @@ struct HarmonicResult {
   double analyse_seconds = 0;     ///< symbolic analyses (all solver instances)
   double total_seconds = 0;
   double factor_nonzeros = 0;     ///< L + U
-  double peak_bytes = 0;          ///< UMFPACK's peak memory for one factorisation
+  double peak_bytes = 0;          ///< MUMPS's memory for one factorisation (with the Schur complement)
   std::string loop;               ///< how the sweep ran, e.g. "parallel (2 threads)"
+  std::string linear_solver;      ///< what factorised the systems, in words
+  std::size_t shared_boundary = 0;  ///< void-boundary unknowns of the shared factorisation (0: none)
 };
 
 /// Runs the sweep. Throws std::invalid_argument for inconsistent input (a void outside the DRM

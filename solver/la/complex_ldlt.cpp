@@ -1,6 +1,7 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
 #include "solver/la/complex_ldlt.hpp"
 
+#include <metis.h>
 #include <zmumps_c.h>
 
 #include <chrono>
@@ -46,6 +47,57 @@ std::string mumps_error(const char* phase, int info1, int info2) {
   return os.str();
 }
 
+// Nested-dissection order of the nodes of `a` (d consecutive unknowns each) that hold no Schur
+// unknown, by METIS on the node graph, then the Schur unknowns: MUMPS's PERM_IN, the 1-based
+// position of each unknown in the pivot order.
+std::vector<MUMPS_INT> metis_positions(const ComplexMatrix& a, int d, const std::vector<char>& in_schur) {
+  const long n = a.rows();
+  if (n % d != 0) throw ComplexSolveError("ComplexLdlt: unknowns not a multiple of the unknowns per node");
+  const long nn = n / d;
+  std::vector<idx_t> vertex(static_cast<std::size_t>(nn), -1);
+  std::vector<long> node;
+  for (long v = 0; v < nn; ++v) {
+    int count = 0;
+    for (int c = 0; c < d; ++c) count += in_schur[static_cast<std::size_t>(d * v + c)];
+    if (count != 0 && count != d) throw ComplexSolveError("ComplexLdlt: the Schur set splits a node");
+    if (count == 0) {
+      vertex[static_cast<std::size_t>(v)] = static_cast<idx_t>(node.size());
+      node.push_back(v);
+    }
+  }
+  const long* outer = a.outerIndexPtr();
+  const long* inner = a.innerIndexPtr();
+  std::vector<idx_t> xadj(node.size() + 1, 0), adj;
+  for (std::size_t q = 0; q < node.size(); ++q) {
+    const long col = d * node[q];
+    for (long k = outer[col]; k < outer[col + 1]; ++k) {
+      const long i = inner[k];
+      if (i % d != 0 || i / d == node[q]) continue;
+      const idx_t w = vertex[static_cast<std::size_t>(i / d)];
+      if (w >= 0) adj.push_back(w);
+    }
+    xadj[q + 1] = static_cast<idx_t>(adj.size());
+  }
+  auto nv = static_cast<idx_t>(node.size());
+  std::vector<idx_t> order(node.size()), where(node.size());
+  if (nv >= 3) {
+    idx_t options[METIS_NOPTIONS];
+    METIS_SetDefaultOptions(options);
+    options[METIS_OPTION_NUMBERING] = 0;
+    if (METIS_NodeND(&nv, xadj.data(), adj.data(), nullptr, options, order.data(), where.data()) != METIS_OK)
+      throw ComplexSolveError("ComplexLdlt: METIS nested dissection failed");
+  } else {
+    for (idx_t q = 0; q < nv; ++q) order[static_cast<std::size_t>(q)] = q;
+  }
+  std::vector<MUMPS_INT> position(static_cast<std::size_t>(n), 0);
+  MUMPS_INT next = 1;
+  for (idx_t q : order)
+    for (int c = 0; c < d; ++c) position[static_cast<std::size_t>(d * node[static_cast<std::size_t>(q)] + c)] = next++;
+  for (long j = 0; j < n; ++j)
+    if (in_schur[static_cast<std::size_t>(j)]) position[static_cast<std::size_t>(j)] = next++;
+  return position;
+}
+
 }  // namespace
 
 struct ComplexLdlt::Impl {
@@ -53,7 +105,7 @@ struct ComplexLdlt::Impl {
   bool initialised = false, analysed = false, factorised = false, reduced = false;
   LdltOrdering ordering = LdltOrdering::automatic;
   long n = 0;
-  std::vector<MUMPS_INT> irn, jcn, schur_list;
+  std::vector<MUMPS_INT> irn, jcn, schur_list, perm_in;
   std::vector<long> pos;  // position in the CSC value array of each lower-triangle entry
   std::vector<std::complex<double>> values, schur_buffer;
   Eigen::MatrixXcd schur, rhs, reduced_rhs;
@@ -88,7 +140,7 @@ ComplexLdlt::~ComplexLdlt() {
   if (impl_->initialised) impl_->call(-2);
 }
 
-void ComplexLdlt::analyze(const ComplexMatrix& a, const std::vector<long>& schur) {
+void ComplexLdlt::analyze(const ComplexMatrix& a, const std::vector<long>& schur, int dofs_per_node) {
   Impl& s = *impl_;
   if (a.rows() != a.cols()) throw ComplexSolveError("ComplexLdlt: the matrix is not square");
   if (a.rows() >= INT_MAX) throw ComplexSolveError("ComplexLdlt: too many unknowns for 32-bit MUMPS indices");
@@ -112,16 +164,25 @@ void ComplexLdlt::analyze(const ComplexMatrix& a, const std::vector<long>& schur
   s.id.irn = s.irn.data();
   s.id.jcn = s.jcn.data();
   s.id.a = reinterpret_cast<ZMUMPS_COMPLEX*>(s.values.data());
+  s.schur_list.clear();
+  std::vector<char> in_schur(static_cast<std::size_t>(s.n), 0);
+  for (long v : schur) {
+    if (v < 0 || v >= s.n) throw ComplexSolveError("ComplexLdlt: Schur unknown out of range");
+    if (in_schur[static_cast<std::size_t>(v)]) throw ComplexSolveError("ComplexLdlt: Schur unknown listed twice");
+    in_schur[static_cast<std::size_t>(v)] = 1;
+    s.schur_list.push_back(static_cast<MUMPS_INT>(v + 1));
+  }
+  s.id.perm_in = nullptr;
   switch (s.ordering) {
     case LdltOrdering::amd: s.id.icntl[icntl(7)] = 0; break;
     case LdltOrdering::scotch: s.id.icntl[icntl(7)] = 3; break;
     case LdltOrdering::pord: s.id.icntl[icntl(7)] = 4; break;
-    case LdltOrdering::automatic: s.id.icntl[icntl(7)] = 7; break;
-  }
-  s.schur_list.clear();
-  for (long v : schur) {
-    if (v < 0 || v >= s.n) throw ComplexSolveError("ComplexLdlt: Schur unknown out of range");
-    s.schur_list.push_back(static_cast<MUMPS_INT>(v + 1));
+    case LdltOrdering::automatic:
+    case LdltOrdering::metis:
+      s.perm_in = metis_positions(a, dofs_per_node, in_schur);
+      s.id.perm_in = s.perm_in.data();
+      s.id.icntl[icntl(7)] = 1;  // the given order
+      break;
   }
   const auto ns = static_cast<long>(s.schur_list.size());
   if (ns > 0) {

@@ -2,9 +2,11 @@
 #pragma once
 // A structured plane block for the dynamic benchmarks: width × depth below z = 0, centred on
 // x = 0, rectangles of side h split into two tri6 with alternating diagonals, midside nodes at
-// the chord midpoints; one layer, no voids.
+// the chord midpoints; one layer, no voids. block_3d: its 3D counterpart of tet10 (Gmsh).
+#include <algorithm>
 #include <cmath>
 
+#include "mesh/build/mesher.hpp"
 #include "mesh/core/mesh.hpp"
 
 namespace voidsign::bench {
@@ -40,6 +42,24 @@ inline mesh::Mesh block(double width, double depth, double h) {
   m.z_max = 0;
   mesh::finish_topology(m, 1e-6);
   return m;
+}
+
+/// A box 2 D × 2 D × D of quadratic tetrahedra of uniform size, one layer, no voids, with about
+/// `target_dofs` unknowns (3 per node): the size is calibrated on a coarse mesh first.
+inline mesh::Mesh block_3d(double target_dofs, double depth = 40) {
+  auto build = [&](double h) {
+    mesh::Geometry3D g;
+    g.width = g.length = 2 * depth;
+    g.depth = depth;
+    g.layer_thickness = {depth};
+    g.sizing.far = g.sizing.near_void = g.sizing.surface = h;
+    g.sizing.gradient = 0.3;
+    g.sizing.order = 2;
+    return mesh::build_mesh_3d(g);
+  };
+  const double h0 = depth / 6;
+  const double nodes0 = static_cast<double>(build(h0).n_nodes());
+  return build(h0 * std::cbrt(3 * nodes0 / target_dofs));
 }
 
 }  // namespace voidsign::bench

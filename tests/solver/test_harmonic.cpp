@@ -566,6 +566,93 @@ TEST_CASE("harmonic frequency loops: sequential and parallel give the same answe
   }
 }
 
+// Largest relative difference between two sweeps' fields, over models, cases and frequencies.
+double sweep_difference(const solver::HarmonicResult& a, const solver::HarmonicResult& b) {
+  double worst = 0;
+  for (std::size_t f = 0; f < a.frequencies_hz.size(); ++f)
+    for (const auto& pair : {std::pair{&a.reference, &b.reference}, std::pair{&a.voided, &b.voided}}) {
+      worst = std::max(worst, (pair.first->u[f] - pair.second->u[f]).norm() / pair.second->u[f].norm());
+      for (std::size_t c = 0; c < pair.first->u_extra.size(); ++c)
+        worst = std::max(worst, (pair.first->u_extra[c][f] - pair.second->u_extra[c][f]).norm() /
+                                    pair.second->u_extra[c][f].norm());
+    }
+  return worst;
+}
+
+TEST_CASE("harmonic shared factorisation: both models on one factorisation equal each on its own") {
+  SUBCASE("plane strain: S and P waves and a force on the void's wall, every node") {
+    const mesh::Mesh m = void_mesh(false, 4.0);
+    auto p = void_problem(m);
+    p.frequencies_hz = {3.0, 7.0};
+    p.output_nodes.clear();  // all nodes, the void interior of the model without voids included
+    solver::HarmonicProblem::LoadCase p_wave, force;
+    p_wave.wave.type = solver::IncidentWave::p;
+    force.source = solver::HarmonicProblem::Source::point_force;
+    force.force.point = {0, 0, -8};  // the void's crown: a node of the void boundary
+    force.force.direction = {0.6, 0, -0.8};
+    force.force.amplitude = 1e3;
+    p.extra_cases = {p_wave, force};
+    const auto shared = solver::solve_harmonic(p);
+    p.share_factorisation = false;
+    const auto separate = solver::solve_harmonic(p);
+    CHECK(shared.shared_boundary > 0);
+    CHECK(separate.shared_boundary == 0);
+    CHECK(shared.extra_force_offsets[1] < 1e-2);  // the crown node of the polygonal outline
+    const double diff = sweep_difference(shared, separate);
+    std::printf("shared factorisation, plane strain: %zu void-boundary unknowns, %zu unknowns, largest difference %.1e; "
+                "residuals %.1e / %.1e\n",
+                shared.shared_boundary, shared.n_dofs, diff, shared.reference.residual[0], shared.voided.residual[0]);
+    CHECK(diff < 1e-9);
+    for (std::size_t f = 0; f < p.frequencies_hz.size(); ++f) {
+      CHECK(shared.reference.residual[f] < 1e-10);
+      CHECK(shared.voided.residual[f] < 1e-10);
+    }
+    CHECK(shared.linear_solver.find("Schur") != std::string::npos);
+  }
+  SUBCASE("3D: a sphere under a surface force; a tunnel through the block falls back to two factorisations") {
+    for (bool tunnel : {false, true}) {
+      mesh::Geometry3D g;
+      g.width = 30;
+      g.length = tunnel ? 16 : 30;
+      g.depth = 20;
+      g.layer_thickness = {6, 14};
+      mesh::VoidSolid v;
+      if (tunnel) {
+        v.kind = mesh::VoidSolid::Kind::tunnel;
+        v.from = {0, -8, -8};
+        v.to = {0, 8, -8};
+        v.radius = 1.5;
+      } else {
+        v.cz = -8;
+        v.radius = 2;
+      }
+      g.voids = {v};
+      g.sizing = {6, 1.5, 3, 2, 0.3};
+      const mesh::Mesh m = mesh::build_mesh_3d(g);
+      solver::HarmonicProblem p;
+      p.mesh = &m;
+      p.kinematics = solver::Kinematics::solid;
+      p.layers = {layer(180, 0.3, 1800, 0.04, 6), layer(450, 0.28, 2000, 0.02)};
+      p.frequencies_hz = {6.0};
+      p.source = solver::HarmonicProblem::Source::point_force;
+      p.force.point = {5, 3, 0};
+      p.force.amplitude = 1e4;
+      p.output_nodes = m.surface_nodes;
+      const auto shared = solver::solve_harmonic(p);
+      p.share_factorisation = false;
+      const auto separate = solver::solve_harmonic(p);
+      const double diff = sweep_difference(shared, separate);
+      std::printf("shared factorisation, 3D %s: %zu void-boundary unknowns of %zu, largest difference %.1e\n",
+                  tunnel ? "tunnel through the block" : "sphere", shared.shared_boundary, shared.n_dofs, diff);
+      CHECK(diff < 1e-9);
+      if (tunnel)
+        CHECK(shared.shared_boundary == 0);  // the void reaches the fixed sides
+      else
+        CHECK(shared.shared_boundary > 0);
+    }
+  }
+}
+
 TEST_CASE("harmonic extra load cases: each equals its own sweep, on the same factorisation") {
   const mesh::Mesh m = void_mesh(false, 4.0);
   auto p = void_problem(m);

@@ -73,13 +73,13 @@ int main(int argc, char** argv) {
                 ta, tf, ts, lu.factor_nonzeros(), lu.flops(), s.residual);
   }
 
-  for (const auto& [name, order] : {std::pair{"automatic", solver::LdltOrdering::automatic},
+  for (const auto& [name, order] : {std::pair{"metis", solver::LdltOrdering::metis},
                                      std::pair{"amd", solver::LdltOrdering::amd},
                                      std::pair{"scotch", solver::LdltOrdering::scotch},
                                      std::pair{"pord", solver::LdltOrdering::pord}}) {
     solver::ComplexLdlt ldlt(order);
     auto t = Clock::now();
-    ldlt.analyze(sys.matrix);
+    ldlt.analyze(sys.matrix, {}, 2);
     const double ta = since(t);
     t = Clock::now();
     ldlt.factorize(sys.matrix);

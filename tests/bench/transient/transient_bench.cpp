@@ -1,11 +1,14 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
 // transient_bench: seconds per 1000 explicit steps of the transient analysis
 // (solver/analysis/transient.*) on a structured plane-strain tri6 block, and one stiffness
-// product in the storage the step uses (node blocks). Usage: transient_bench [target_dofs ...]
+// product in the storage the step uses (node blocks); with --dim 3 on a tet10 box (Gmsh).
+// Usage: transient_bench [--dim 3] [target_dofs ...]
 #include <chrono>
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
+#include <fstream>
+#include <string>
 #include <vector>
 
 #include "solver/analysis/transient.hpp"
@@ -18,19 +21,38 @@ namespace {
 
 double now() { return std::chrono::duration<double>(std::chrono::steady_clock::now().time_since_epoch()).count(); }
 
+double peak_rss_gib() {
+  std::ifstream in("/proc/self/status");
+  std::string line;
+  while (std::getline(in, line))
+    if (line.rfind("VmHWM:", 0) == 0) return std::strtod(line.c_str() + 6, nullptr) / (1024.0 * 1024.0);
+  return 0;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
   std::vector<double> targets;
-  for (int i = 1; i < argc; ++i) targets.push_back(std::atof(argv[i]));
-  if (targets.empty()) targets = {2e5, 1e6};
+  int dim = 2;
+  for (int i = 1; i < argc; ++i) {
+    if (std::string(argv[i]) == "--dim" && i + 1 < argc) {
+      dim = std::atoi(argv[++i]);
+      continue;
+    }
+    targets.push_back(std::atof(argv[i]));
+  }
+  if (targets.empty()) targets = dim == 3 ? std::vector<double>{5e5} : std::vector<double>{2e5, 1e6};
   for (double target : targets) {
-    // (2nx+1)(2nz+1) nodes with nx = 2 nz: ≈ 8 nz² nodes, 16 nz² dofs.
+    // 2D: (2nx+1)(2nz+1) nodes with nx = 2 nz: ≈ 8 nz² nodes, 16 nz² dofs.
     const int nz = static_cast<int>(std::sqrt(target / 16));
     const double h = 1.0;
-    const auto m = bench::block(2.0 * nz * h, nz * h, h);
+    double t_mesh = now();
+    const auto m = dim == 3 ? bench::block_3d(target) : bench::block(2.0 * nz * h, nz * h, h);
+    t_mesh = now() - t_mesh;
+    if (dim == 3) std::printf("3D tet10 box, %zu nodes, %zu cells, mesh %.1f s\n", m.n_nodes(), m.n_cells(), t_mesh);
     solver::TransientProblem p;
     p.mesh = &m;
+    p.kinematics = dim == 3 ? solver::Kinematics::solid : solver::Kinematics::plane_strain;
     const double g = 2000.0 * 100 * 100;
     p.layers = {{{2 * g * 1.25, 0.25, 2000}, 0.02}};
     p.source.point = {0, 0, 0};
@@ -49,9 +71,9 @@ int main(int argc, char** argv) {
       const auto tr = em.run(steps, m.surface_nodes[m.surface_nodes.size() / 2], {});
       const auto est = solver::estimate_transient(em.n_free(), em.n_nonzeros(), steps, false, 0, 1, em.block_size());
       std::printf("transient %zu dofs, %zu nonzeros, xi %.2f: bound %.2f s, setup %.2f s, %.2f s per 1000 steps "
-                  "(estimate %.2f s, %.0f MB)\n",
+                  "(estimate %.2f s, %.0f MB), peak memory %.2f GiB\n",
                   em.n_free(), em.n_nonzeros(), xi, t_bound, t_setup, tr.loop_seconds * 1000 / steps,
-                  est.seconds_per_step * 1000, est.bytes / 1e6);
+                  est.seconds_per_step * 1000, est.bytes / 1e6, peak_rss_gib());
       std::fflush(stdout);
       if (xi > 0) break;
       // One stiffness product in the storage the step uses (node blocks when possible).
