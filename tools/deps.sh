@@ -3,7 +3,7 @@
 # Installs the Debian 12 packages voidsign builds against (run as root). Shared by demo.sh and test.sh.
 set -euo pipefail
 packages=(cmake g++ make libeigen3-dev libspectra-dev libvtk9-dev libyaml-cpp-dev doctest-dev
-          libsuitesparse-dev libmetis-dev libhypre-dev libmumps-dev libcli11-dev libgmsh-dev libopenblas0-pthread nlohmann-json3-dev
+          libsuitesparse-dev libmetis-dev libhypre-dev libmumps-dev libmumps-seq-dev libcli11-dev libgmsh-dev libopenblas0-pthread nlohmann-json3-dev
           chromium fonts-dejavu-core)  # the browser check of the HTML report (tests/report/)
 missing=()
 for p in "${packages[@]}"; do

@@ -9,6 +9,7 @@
 #include <Eigen/Dense>
 #include <Eigen/SparseLU>
 #include <exception>
+#include <fstream>
 #include <limits>
 #include <memory>
 #include <numbers>
@@ -381,7 +382,7 @@ void assemble_model(const Setup& s, double omega, bool voided, ComplexMatrix& a)
 
 // The solver state of one thread: a factorisation and the matrix storage it reads.
 struct Worker {
-  explicit Worker(const Setup& s) : ldlt(s.p->ordering), a(s.pattern) {}
+  Worker(const Setup& s, int slot) : ldlt(s.p->ordering, slot), a(s.pattern) {}
   ComplexLdlt ldlt;
   ComplexMatrix a;
 };
@@ -783,6 +784,15 @@ void prepare(const HarmonicProblem& p, Setup& s, HarmonicResult& r) {
   r.setup_seconds = seconds_since(t_setup);
 }
 
+double available_bytes() {
+  std::ifstream in("/proc/meminfo");
+  std::string key, unit;
+  double value = 0;
+  while (in >> key >> value >> unit)
+    if (key == "MemAvailable:") return value * 1024;
+  return 0;
+}
+
 }  // namespace
 
 HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress) {
@@ -824,52 +834,58 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
   };
 
   std::vector<std::unique_ptr<Worker>> workers;
-  workers.push_back(std::make_unique<Worker>(s));
+  workers.push_back(std::make_unique<Worker>(s, 0));
   std::size_t done = 0;
   auto tick = [&] {
     ++done;
     report("harmonic", static_cast<double>(done) / static_cast<double>(units.size()));
   };
 
-  // MUMPS runs one call at a time in a process (solver/la/complex_ldlt.hpp), so a parallel loop
-  // only overlaps the rest of a frequency's work (assembly, loads, the dense Schur systems,
-  // residuals, outputs) with another frequency's factorisation, on a single-threaded BLAS. On
-  // 2 cores one frequency at a time with the BLAS's two threads was faster (docs/theory.md), so
-  // `automatic` runs sequentially. FrequencyLoop::parallel (first unit alone, to measure the
-  // factor's memory, then one worker per thread) exists for comparison.
+  // MUMPS runs one call at a time per copy of the library (solver/la/complex_ldlt.hpp). Where a
+  // second, private copy is installed, two frequencies are factorised at once, each on a
+  // single-threaded BLAS: the faster choice measured on 2 cores (docs/theory.md), taken when one
+  // factor per thread fits in 60 % of the available memory by MUMPS's estimate after the first
+  // analysis. Otherwise (and for FrequencyLoop::sequential) one frequency at a time, the BLAS
+  // using its own threads. FrequencyLoop::parallel skips the checks.
+  {
+    Worker& w = *workers[0];
+    assemble_model(s, 2 * std::numbers::pi * p.frequencies_hz[0], shared, w.a);
+    try {
+      w.ldlt.analyze(w.a, shared ? s.gamma : std::vector<long>{}, s.d);
+    } catch (const ComplexSolveError& e) {
+      fail(p, 0, "symbolic analysis", e.what());
+    }
+  }
   const int n_threads = std::min<int>(omp_get_max_threads(), static_cast<int>(units.size()));
-  const bool want_parallel = p.loop == FrequencyLoop::parallel && n_threads > 1;
-  const int blas_before = want_parallel ? set_blas_threads(1) : 0;
+  bool parallel = n_threads > 1 && p.loop == FrequencyLoop::parallel;
+  if (n_threads > 1 && p.loop == FrequencyLoop::automatic && ComplexLdlt::concurrent_slots()) {
+    const double need = n_threads * (workers[0]->ldlt.estimated_bytes() + 40.0 * static_cast<double>(s.pattern.nonZeros()));
+    const double avail = available_bytes();
+    parallel = avail <= 0 || need < 0.6 * avail;
+  }
+  const int blas_before = parallel ? set_blas_threads(1) : 0;
   struct BlasRestore {
     int n;
     ~BlasRestore() {
       if (n > 0) set_blas_threads(n);
     }
   } restore{blas_before};
-  std::size_t next = 0;
-  bool parallel = false;
-  if (want_parallel) {
-    run_unit(units[0], *workers[0]);
-    tick();
-    next = 1;
-    parallel = true;
-  }
   if (!parallel) {
     r.loop = "sequential";
-    for (std::size_t i = next; i < units.size(); ++i) {
+    for (std::size_t i = 0; i < units.size(); ++i) {
       run_unit(units[i], *workers[0]);
       tick();
     }
   } else {
     r.loop = "parallel (" + std::to_string(n_threads) + " threads)";
-    for (int t = 1; t < n_threads; ++t) workers.push_back(std::make_unique<Worker>(s));
+    for (int t = 1; t < n_threads; ++t) workers.push_back(std::make_unique<Worker>(s, t % 2));
     std::exception_ptr error;
     const long n_units = static_cast<long>(units.size());
 #pragma omp parallel num_threads(n_threads)
     {
       const auto t = static_cast<std::size_t>(omp_get_thread_num());
 #pragma omp for schedule(dynamic, 1)
-      for (long i = static_cast<long>(next); i < n_units; ++i) {
+      for (long i = 0; i < n_units; ++i) {
         try {
           run_unit(units[static_cast<std::size_t>(i)], *workers[t]);
 #pragma omp critical(harmonic_progress)

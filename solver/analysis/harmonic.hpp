@@ -93,10 +93,10 @@ struct PlaneWave {
 
 /// How the frequencies are spread over the cores.
 enum class FrequencyLoop {
-  automatic,   ///< = sequential: the faster choice measured on 2 cores (docs/theory.md)
+  automatic,   ///< two frequencies at a time where a second copy of MUMPS is installed and two
+               ///< factors fit in memory, single-threaded BLAS; else sequential (docs/theory.md)
   sequential,  ///< one frequency at a time, the BLAS under MUMPS using its own threads
-  parallel     ///< one worker per thread, single-threaded BLAS; MUMPS's calls still run one at a
-               ///< time, so only the rest of each frequency's work overlaps
+  parallel     ///< one worker per thread, single-threaded BLAS, no memory check
 };
 
 struct HarmonicProblem {

@@ -1,12 +1,14 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
 #include "solver/la/complex_ldlt.hpp"
 
+#include <dlfcn.h>
 #include <metis.h>
 #include <zmumps_c.h>
 
 #include <chrono>
 #include <climits>
 #include <complex>
+#include <cstring>
 #include <mutex>
 #include <sstream>
 #include <string>
@@ -22,10 +24,49 @@ using Clock = std::chrono::steady_clock;
 double seconds_since(Clock::time_point t0) { return std::chrono::duration<double>(Clock::now() - t0).count(); }
 
 // MUMPS keeps module-level state (its load-balancing module among others) across the instances
-// of a process: two factorisations at once in one process corrupt each other (measured: an
-// allocation failure in ZMUMPS_LOAD_INIT). Every call into MUMPS therefore holds this lock; the
-// callers overlap their own work (assembly, dense Schur systems, residuals) instead.
-std::mutex g_mumps_lock;
+// of a process: two factorisations at once in one copy of the library corrupt each other
+// (measured: an allocation failure in ZMUMPS_LOAD_INIT). Each copy of the library therefore has
+// a lock that every call holds. Copy 0 is the MPI build voidsign links; copy 1, where installed,
+// is Debian's sequential build, loaded privately (RTLD_LOCAL | RTLD_DEEPBIND: its own MPI stubs
+// and module state, invisible to the rest of the process), so that two factorisations can run
+// at the same time.
+struct Backend {
+  using Entry = void (*)(ZMUMPS_STRUC_C*);
+  Entry entry = nullptr;
+  bool sequential_build = false;
+  std::mutex lock;
+};
+
+Backend& backend(int slot) {
+  static Backend linked;
+  static Backend private_copy;
+  static std::once_flag once;
+  std::call_once(once, [] {
+    linked.entry = zmumps_c;
+    if (std::getenv("VOIDSIGN_ONE_MUMPS")) return;
+    void* h = nullptr;
+    for (const char* name : {"libzmumps_seq.so", "libzmumps_seq-5.5.so"})
+      if (!h) h = dlopen(name, RTLD_NOW | RTLD_LOCAL | RTLD_DEEPBIND);
+    if (!h) return;
+    const auto entry = reinterpret_cast<Backend::Entry>(dlsym(h, "zmumps_c"));
+    if (!entry) return;
+    // Only a copy of the very version this file was compiled against shares the structure's
+    // layout: ask it.
+    ZMUMPS_STRUC_C probe{};
+    probe.comm_fortran = -987654;
+    probe.par = 1;
+    probe.sym = 2;
+    probe.job = -1;
+    entry(&probe);
+    const bool same = probe.infog[0] == 0 && std::strcmp(probe.version_number, MUMPS_VERSION) == 0;
+    probe.job = -2;
+    entry(&probe);
+    if (!same) return;
+    private_copy.entry = entry;
+    private_copy.sequential_build = true;
+  });
+  return slot == 1 && private_copy.entry ? private_copy : linked;
+}
 
 // MUMPS's 1-based control and information arrays.
 constexpr int icntl(int k) { return k - 1; }
@@ -111,20 +152,23 @@ struct ComplexLdlt::Impl {
   Eigen::MatrixXcd schur, rhs, reduced_rhs;
   double analyse_s = 0, factor_s = 0;
 
+  Backend* lib = nullptr;
   void call(int job) {
-    const std::lock_guard<std::mutex> lock(g_mumps_lock);
+    const std::lock_guard<std::mutex> lock(lib->lock);
     id.job = job;
-    zmumps_c(&id);
+    lib->entry(&id);
   }
   int info1() const { return id.infog[0]; }
   int info2() const { return id.infog[1]; }
 };
 
-ComplexLdlt::ComplexLdlt(LdltOrdering ordering) : impl_(std::make_unique<Impl>()) {
+ComplexLdlt::ComplexLdlt(LdltOrdering ordering, int slot) : impl_(std::make_unique<Impl>()) {
   ensure_mpi();
   Impl& s = *impl_;
   s.ordering = ordering;
-  s.id.comm_fortran = mpi_comm_self_fortran();
+  s.lib = &backend(slot);
+  // The sequential build's MPI stubs know only their own MPI_COMM_WORLD.
+  s.id.comm_fortran = s.lib->sequential_build ? -987654 : mpi_comm_self_fortran();
   s.id.par = 1;
   s.id.sym = 2;
   s.call(-1);
@@ -299,7 +343,13 @@ double ComplexLdlt::peak_bytes() const {
   return 1e6 * impl_->id.infog[icntl(22)] + schur_bytes;
 }
 
+double ComplexLdlt::estimated_bytes() const {
+  return 1e6 * impl_->id.infog[icntl(17)] + 16.0 * static_cast<double>(impl_->schur_buffer.size());
+}
+
 double ComplexLdlt::analyse_seconds() const { return impl_->analyse_s; }
 double ComplexLdlt::factorize_seconds() const { return impl_->factor_s; }
+
+bool ComplexLdlt::concurrent_slots() { return &backend(1) != &backend(0); }
 
 }  // namespace voidsign::solver

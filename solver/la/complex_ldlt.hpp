@@ -11,7 +11,9 @@
 /// two halves around a system on Γ that the caller solves itself:
 ///   reduce(B)  → y = B_Γ − A_ΓO A_OO⁻¹ B_O              (forward elimination)
 ///   expand(x_Γ) → x_O = A_OO⁻¹ (B_O − A_OΓ x_Γ), x = (x_O, x_Γ)  (back substitution)
-/// MUMPS is not re-entrant: calls from different threads (different instances) run one at a time.
+/// MUMPS is not re-entrant: calls into one copy of the library run one at a time, whatever the
+/// instance. Instances in slot 1 use a second, private copy (Debian's sequential build, where
+/// installed), so one instance in each slot can factorise at the same time.
 /// The harmonic analysis uses it to factorise the part the models with and without voids share
 /// once per frequency (solver/analysis/harmonic.cpp).
 #include <memory>
@@ -29,7 +31,9 @@ enum class LdltOrdering { automatic, metis, amd, scotch, pord };
 
 class ComplexLdlt {
  public:
-  explicit ComplexLdlt(LdltOrdering ordering = LdltOrdering::automatic);
+  explicit ComplexLdlt(LdltOrdering ordering = LdltOrdering::automatic, int slot = 0);
+  /// Whether slots 0 and 1 are independent copies of MUMPS (calls in both may run at once).
+  static bool concurrent_slots();
   ~ComplexLdlt();
   ComplexLdlt(const ComplexLdlt&) = delete;
   ComplexLdlt& operator=(const ComplexLdlt&) = delete;
@@ -61,6 +65,9 @@ class ComplexLdlt {
   double factor_nonzeros() const;
   /// Floating-point operations of the last factorisation, as MUMPS counts them.
   double flops() const;
+  /// MUMPS's estimate after the analysis of the memory a factorisation needs [bytes], the Schur
+  /// complement included.
+  double estimated_bytes() const;
   /// Memory MUMPS used in the last factorisation [bytes], the Schur complement included.
   double peak_bytes() const;
   double analyse_seconds() const;
