@@ -23,6 +23,9 @@ namespace {
 using Clock = std::chrono::steady_clock;
 double seconds_since(Clock::time_point t0) { return std::chrono::duration<double>(Clock::now() - t0).count(); }
 
+// MUMPS's 1-based control and information arrays.
+constexpr int icntl(int k) { return k - 1; }
+
 // MUMPS keeps module-level state (its load-balancing module among others) across the instances
 // of a process: two factorisations at once in one copy of the library corrupt each other
 // (measured: an allocation failure in ZMUMPS_LOAD_INIT). Each copy of the library therefore has
@@ -59,6 +62,8 @@ Backend& backend(int slot) {
     probe.job = -1;
     entry(&probe);
     const bool same = probe.infog[0] == 0 && std::strcmp(probe.version_number, MUMPS_VERSION) == 0;
+    for (int k : {1, 2, 3}) probe.icntl[icntl(k)] = -1;
+    probe.icntl[icntl(4)] = 0;
     probe.job = -2;
     entry(&probe);
     if (!same) return;
@@ -68,8 +73,6 @@ Backend& backend(int slot) {
   return slot == 1 && private_copy.entry ? private_copy : linked;
 }
 
-// MUMPS's 1-based control and information arrays.
-constexpr int icntl(int k) { return k - 1; }
 
 std::string mumps_error(const char* phase, int info1, int info2) {
   std::ostringstream os;
