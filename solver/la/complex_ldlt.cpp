@@ -350,6 +350,13 @@ double ComplexLdlt::estimated_bytes() const {
   return 1e6 * impl_->id.infog[icntl(17)] + 16.0 * static_cast<double>(impl_->schur_buffer.size());
 }
 
+double ComplexLdlt::estimated_entries() const {
+  const int e = impl_->id.infog[icntl(20)];
+  return e >= 0 ? e : -1e6 * e;
+}
+
+double ComplexLdlt::estimated_flops() const { return impl_->id.rinfog[icntl(1)]; }
+
 double ComplexLdlt::analyse_seconds() const { return impl_->analyse_s; }
 double ComplexLdlt::factorize_seconds() const { return impl_->factor_s; }
 

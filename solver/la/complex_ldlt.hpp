@@ -68,6 +68,9 @@ class ComplexLdlt {
   /// MUMPS's estimate after the analysis of the memory a factorisation needs [bytes], the Schur
   /// complement included.
   double estimated_bytes() const;
+  /// MUMPS's estimates after the analysis of the factor's entries and the factorisation's flops.
+  double estimated_entries() const;
+  double estimated_flops() const;
   /// Memory MUMPS used in the last factorisation [bytes], the Schur complement included.
   double peak_bytes() const;
   double analyse_seconds() const;
