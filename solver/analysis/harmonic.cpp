@@ -544,11 +544,12 @@ void solve_shared(const Setup& s, std::size_t freq, Worker& w, HarmonicResult& r
     };
     // Solutions of both models for right-hand sides gv (model with voids) and gr (without).
     const auto solve_both = [&](const Eigen::MatrixXcd& gv, const Eigen::MatrixXcd& gr, Eigen::MatrixXcd& uv, Eigen::MatrixXcd& ur) {
-      // The matrix factorised is the model with voids, whose rows on I are unit constraints and
-      // whose right-hand sides there are zero: g_v serves both models, and the model without
-      // voids' own loads on I (if any) enter through the plug.
+      // The matrix factorised is the model with voids, whose rows on I are unit constraints
+      // with zero right-hand sides; the model without voids' own loads on I (if any) enter
+      // through the plug instead.
       Eigen::MatrixXcd both(s.nd, 2 * nc);
-      both << gv, gv;
+      both << gv, gr;
+      for (long k = 0; k < ni; ++k) both.row(s.interior[static_cast<std::size_t>(k)]).setZero();
       const Eigen::MatrixXcd y = w.ldlt.reduce(both);
       Eigen::MatrixXcd yr = y.rightCols(nc);
       Eigen::MatrixXcd fi, wi;
