@@ -857,10 +857,21 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
       fail(p, 0, "symbolic analysis", e.what());
     }
   }
+  // Refuse a sweep whose single factorisation would not fit, before it is attempted.
+  const double one_factor = workers[0]->ldlt.estimated_bytes() + 40.0 * static_cast<double>(s.pattern.nonZeros());
+  const double limit = p.memory_limit_bytes > 0 ? p.memory_limit_bytes : 0.9 * available_bytes();
+  if (limit > 0 && one_factor > limit) {
+    std::ostringstream os;
+    os.precision(3);
+    os << "harmonic: one factorisation of the " << s.nd << " unknowns needs an estimated " << one_factor / 1e9
+       << " GB (MUMPS's analysis), more than the " << limit / 1e9
+       << " GB available; coarsen the mesh (mesh.size, mesh.near-void) or reduce the block";
+    throw SolveFailure(os.str());
+  }
   const int n_threads = std::min<int>(omp_get_max_threads(), static_cast<int>(units.size()));
   bool parallel = n_threads > 1 && p.loop == FrequencyLoop::parallel;
   if (n_threads > 1 && p.loop == FrequencyLoop::automatic && ComplexLdlt::concurrent_slots()) {
-    const double need = n_threads * (workers[0]->ldlt.estimated_bytes() + 40.0 * static_cast<double>(s.pattern.nonZeros()));
+    const double need = n_threads * one_factor;
     const double avail = available_bytes();
     parallel = avail <= 0 || need < 0.6 * avail;
   }

@@ -136,6 +136,9 @@ struct HarmonicProblem {
   /// dense); otherwise, or when false, each model is factorised on its own.
   bool share_factorisation = true;
   long max_shared_boundary = 3000;
+  /// Memory a factorisation may use [bytes]; 0 = 90 % of the memory available. A sweep whose
+  /// factorisation MUMPS's analysis estimates above it is refused (SolveFailure) before it starts.
+  double memory_limit_bytes = 0;
   double max_residual = 1e-8;  ///< ‖S u − f‖/‖f‖ above which a solve is rejected (SolveFailure)
 };
 
@@ -188,7 +191,7 @@ struct HarmonicResult {
 
 /// Runs the sweep. Throws std::invalid_argument for inconsistent input (a void outside the DRM
 /// box, the box reaching the PML, layers not matching the mesh tags) and SolveFailure when a
-/// factorisation fails or a residual exceeds max_residual.
+/// factorisation would not fit in memory, fails, or a residual exceeds max_residual.
 HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress = {});
 
 /// One assembled, constrained system S(ω) u = f, as solve_harmonic factorises it (for other

@@ -653,6 +653,22 @@ TEST_CASE("harmonic shared factorisation: both models on one factorisation equal
   }
 }
 
+TEST_CASE("harmonic memory: a factorisation estimated above the limit is refused before it starts") {
+  const mesh::Mesh m = void_mesh(false, 4.0);
+  auto p = void_problem(m);
+  p.memory_limit_bytes = 1e6;
+  try {
+    (void)solver::solve_harmonic(p);
+    FAIL("no SolveFailure");
+  } catch (const solver::SolveFailure& e) {
+    const std::string what = e.what();
+    CHECK(what.find("needs an estimated") != std::string::npos);
+    CHECK(what.find("mesh.size") != std::string::npos);
+  }
+  p.memory_limit_bytes = 0;
+  CHECK_NOTHROW((void)solver::solve_harmonic(p));
+}
+
 TEST_CASE("harmonic extra load cases: each equals its own sweep, on the same factorisation") {
   const mesh::Mesh m = void_mesh(false, 4.0);
   auto p = void_problem(m);
