@@ -75,23 +75,26 @@ SparseMatrix stiffness_pattern(const mesh::Mesh& m) {
   return k;
 }
 
-void assemble_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<char>& active,
-                        const std::function<const Elastic&(std::size_t)>& material_of, SparseMatrix& k) {
-  std::fill(k.valuePtr(), k.valuePtr() + k.nonZeros(), 0.0);
+namespace {
+
+// k += sign · K_e over the cells for which take(c) is true.
+template <class Take>
+void add_cell_stiffness(const mesh::Mesh& m, Kinematics kin, long n_items, Take take,
+                        const std::function<const Elastic&(std::size_t)>& material_of, double sign, SparseMatrix& k) {
   const int npc = m.npc();
   const int d = dofs_per_node(kin);
   const int nd = d * npc;
-  const long nc = static_cast<long>(m.n_cells());
   const int* outer = k.outerIndexPtr();
   const int* rows = k.innerIndexPtr();
   double* vals = k.valuePtr();
-#pragma omp parallel
+#pragma omp parallel if (n_items > 512)
   {
     std::vector<double> ke(static_cast<std::size_t>(nd * nd));
     int dof[3 * max_cell_nodes];
 #pragma omp for schedule(dynamic, 512)
-    for (long c = 0; c < nc; ++c) {
-      if (!active[c]) continue;
+    for (long i = 0; i < n_items; ++i) {
+      const long c = take(i);
+      if (c < 0) continue;
       const auto cu = static_cast<std::size_t>(c);
       stiffness(m, cu, material_of(cu), kin, ke);
       const int* v = m.cell(cu);
@@ -106,11 +109,28 @@ void assemble_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<c
           if (row < col) continue;
           const auto pos = std::lower_bound(b, e, row) - rows;
 #pragma omp atomic
-          vals[pos] += ke[p * nd + q];
+          vals[pos] += sign * ke[p * nd + q];
         }
       }
     }
   }
+}
+
+}  // namespace
+
+void assemble_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<char>& active,
+                        const std::function<const Elastic&(std::size_t)>& material_of, SparseMatrix& k) {
+  std::fill(k.valuePtr(), k.valuePtr() + k.nonZeros(), 0.0);
+  add_cell_stiffness(
+      m, kin, static_cast<long>(m.n_cells()), [&](long c) { return active[static_cast<std::size_t>(c)] ? c : -1L; },
+      material_of, 1.0, k);
+}
+
+void subtract_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<std::size_t>& cells,
+                        const std::function<const Elastic&(std::size_t)>& material_of, SparseMatrix& k) {
+  add_cell_stiffness(
+      m, kin, static_cast<long>(cells.size()), [&](long i) { return static_cast<long>(cells[static_cast<std::size_t>(i)]); },
+      material_of, -1.0, k);
 }
 
 void constrain_matrix(SparseMatrix& k, const std::vector<char>& fixed) {

@@ -27,6 +27,12 @@ SparseMatrix stiffness_pattern(const mesh::Mesh& m);
 void assemble_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<char>& active,
                         const std::function<const Elastic&(std::size_t)>& material_of, SparseMatrix& k);
 
+/// Subtracts the stiffness of `cells` from an assembled `k` (same pattern): the model with voids
+/// from the model without them, at the cost of the void cells alone. Entries no listed cell
+/// touches are left bit for bit as they were.
+void subtract_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<std::size_t>& cells,
+                        const std::function<const Elastic&(std::size_t)>& material_of, SparseMatrix& k);
+
 /// Zeroes the rows and columns of the fixed dofs in place, keeping the pattern, and gives each a
 /// positive diagonal (its own, or the mean diagonal when it had none, as inside a void).
 void constrain_matrix(SparseMatrix& k, const std::vector<char>& fixed);
