@@ -4,6 +4,7 @@
 #include <omp.h>
 
 #include <algorithm>
+#include <cmath>
 #include <numeric>
 
 namespace voidsign::solver {
@@ -128,9 +129,43 @@ void assemble_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<c
 
 void subtract_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<std::size_t>& cells,
                         const std::function<const Elastic&(std::size_t)>& material_of, SparseMatrix& k) {
+  // Entries that only the listed cells filled cancel to round-off; they are set to exact zeros
+  // (as a fresh assembly without those cells would leave them), judged against their value before.
+  const int npc = m.npc();
+  const int d = dofs_per_node(kin);
+  const int nd = d * npc;
+  const int* outer = k.outerIndexPtr();
+  const int* rows = k.innerIndexPtr();
+  double* vals = k.valuePtr();
+  std::vector<std::pair<long, double>> touched;  // position, value before
+  std::vector<char> seen(static_cast<std::size_t>(k.nonZeros()), 0);
+  std::vector<double> ke(static_cast<std::size_t>(nd * nd));
+  int dof[3 * max_cell_nodes];
+  for (std::size_t c : cells) {
+    stiffness(m, c, material_of(c), kin, ke);
+    const int* v = m.cell(c);
+    for (int a = 0; a < npc; ++a)
+      for (int j = 0; j < d; ++j) dof[d * a + j] = d * v[a] + j;
+    for (int q = 0; q < nd; ++q) {
+      const int col = dof[q];
+      const int* b = rows + outer[col];
+      const int* e = rows + outer[col + 1];
+      for (int p = 0; p < nd; ++p) {
+        const int row = dof[p];
+        if (row < col) continue;
+        const long pos = std::lower_bound(b, e, row) - rows;
+        if (!seen[static_cast<std::size_t>(pos)]) {
+          seen[static_cast<std::size_t>(pos)] = 1;
+          touched.emplace_back(pos, vals[pos]);
+        }
+      }
+    }
+  }
   add_cell_stiffness(
       m, kin, static_cast<long>(cells.size()), [&](long i) { return static_cast<long>(cells[static_cast<std::size_t>(i)]); },
       material_of, -1.0, k);
+  for (const auto& [pos, before] : touched)
+    if (std::abs(vals[pos]) <= 1e-12 * std::abs(before)) vals[pos] = 0;
 }
 
 void constrain_matrix(SparseMatrix& k, const std::vector<char>& fixed) {

@@ -29,7 +29,8 @@ void assemble_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<c
 
 /// Subtracts the stiffness of `cells` from an assembled `k` (same pattern): the model with voids
 /// from the model without them, at the cost of the void cells alone. Entries no listed cell
-/// touches are left bit for bit as they were.
+/// touches are left bit for bit as they were; entries only the listed cells filled become exact
+/// zeros (cancellation to 1e-12 of their value).
 void subtract_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<std::size_t>& cells,
                         const std::function<const Elastic&(std::size_t)>& material_of, SparseMatrix& k);
 
