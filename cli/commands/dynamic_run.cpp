@@ -406,9 +406,9 @@ std::vector<int> surface_points(const solver::HarmonicResult& r, const mesh::Mes
   return out;
 }
 
-HarmonicRun run_harmonic(const Scenario& s, const mesh::Mesh& m, ProgressLine* progress) {
+// The harmonic analysis of the scenario as the solver takes it.
+solver::HarmonicProblem harmonic_sweep_of(const Scenario& s, const mesh::Mesh& m) {
   const HarmonicAnalysis& a = *s.analyses.harmonic;
-  HarmonicRun run;
   solver::HarmonicProblem p = harmonic_problem_of(s, m);
   p.frequencies_hz = a.frequencies_hz;
   if (a.excitation == HarmonicAnalysis::Excitation::wave) {
@@ -420,8 +420,25 @@ HarmonicRun run_harmonic(const Scenario& s, const mesh::Mesh& m, ProgressLine* p
     p.force.direction = a.direction;
     p.force.amplitude = a.force;
   }
-  run.pml_thickness = absorbing_band(s, m, a.absorbing, "analyses.harmonic");
-  p.pml_thickness = run.pml_thickness;
+  p.pml_thickness = absorbing_band(s, m, a.absorbing, "analyses.harmonic");
+  return p;
+}
+
+solver::HarmonicEstimate estimate_harmonic_run(const Scenario& s, const mesh::Mesh& m) {
+  const solver::HarmonicProblem p = harmonic_sweep_of(s, m);
+  try {
+    return solver::estimate_harmonic(p);
+  } catch (const solver::SolveFailure& e) {
+    throw SolveError(std::string("harmonic analysis: ") + e.what());
+  } catch (const std::invalid_argument& e) {
+    throw InputError(s.file.string() + ": key 'analyses.harmonic': " + e.what());
+  }
+}
+
+HarmonicRun run_harmonic(const Scenario& s, const mesh::Mesh& m, ProgressLine* progress) {
+  HarmonicRun run;
+  const solver::HarmonicProblem p = harmonic_sweep_of(s, m);
+  run.pml_thickness = p.pml_thickness;
   try {
     run.result = solver::solve_harmonic(p, [&](std::string_view step, double f) {
       if (progress) progress->step(std::string("harmonic: ") + std::string(step), f);

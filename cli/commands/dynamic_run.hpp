@@ -58,6 +58,8 @@ struct HarmonicRun {
 /// Runs `analyses.harmonic` of `s` on mesh `m`. Throws InputError when the block cannot hold the
 /// absorbing band and the voids, SolveError when a solve fails.
 HarmonicRun run_harmonic(const Scenario& s, const mesh::Mesh& m, ProgressLine* progress);
+/// MUMPS's analysis of the first frequency of the scenario's harmonic sweep (`voidsign check`).
+solver::HarmonicEstimate estimate_harmonic_run(const Scenario& s, const mesh::Mesh& m);
 /// harmonic/surface.csv, harmonic/fields.pvd and one harmonic/fields_NNN.vtu per frequency.
 void write_harmonic_outputs(const HarmonicRun& run, const Scenario& s, const mesh::Mesh& m,
                             const std::filesystem::path& dir);

@@ -328,6 +328,18 @@ int check_command(const fs::path& file) {
                 plan.estimate.bytes / 1e9, plan.estimate.seconds_total);
     for (const auto& w : plan.warnings) std::printf("warning: %s\n", w.c_str());
   }
+  if (s.analyses.harmonic) {
+    const solver::HarmonicEstimate h = estimate_harmonic_run(s, *m);
+    std::printf("harmonic estimate: %zu unknowns, %d factorisation(s) per frequency", h.n_dofs,
+                h.factorisations_per_frequency);
+    if (h.shared_boundary > 0) std::printf(" (both models, Schur complement on %zu void-boundary unknowns)", h.shared_boundary);
+    std::printf("; factor %.3g entries, %.3g flops, %.2f GB each; about %.2g s per frequency, %zu frequencies\n",
+                h.factor_entries, h.flops, h.bytes / 1e9, h.seconds_per_frequency, s.analyses.harmonic->frequencies_hz.size());
+    if (h.available_bytes > 0 && h.bytes > 0.9 * h.available_bytes)
+      std::printf("warning: harmonic: one factorisation needs %.2f GB, more than the %.2f GB available: the run would be "
+                  "refused; coarsen the mesh (mesh.size, mesh.near-void) or reduce the block\n",
+                  h.bytes / 1e9, 0.9 * h.available_bytes / 1e9);
+  }
   return exit_ok;
 }
 

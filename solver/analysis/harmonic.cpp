@@ -925,6 +925,33 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
   return r;
 }
 
+HarmonicEstimate estimate_harmonic(const HarmonicProblem& p) {
+  Setup s;
+  HarmonicResult r;
+  prepare(p, s, r);
+  Worker w(s, 0);
+  const bool shared = !s.gamma.empty();
+  assemble_model(s, 2 * std::numbers::pi * p.frequencies_hz[0], shared, w.a);
+  try {
+    w.ldlt.analyze(w.a, shared ? s.gamma : std::vector<long>{}, s.d);
+  } catch (const ComplexSolveError& e) {
+    fail(p, 0, "symbolic analysis", e.what());
+  }
+  HarmonicEstimate e;
+  e.n_dofs = static_cast<std::size_t>(s.nd);
+  e.shared_boundary = s.gamma.size();
+  e.factorisations_per_frequency = shared || !p.with_voids ? 1 : 2;
+  e.factor_entries = w.ldlt.estimated_entries();
+  e.flops = w.ldlt.estimated_flops();
+  e.bytes = w.ldlt.estimated_bytes() + 40.0 * static_cast<double>(s.pattern.nonZeros());
+  e.available_bytes = available_bytes();
+  // Rates measured with harmonic_bench on the 2-core benchmark machine (docs/benchmarks.md):
+  // about 5 Gflop/s per frequency for 2D fronts, 18 Gflop/s for the large fronts of 3D.
+  const double rate = s.d == 3 ? 18e9 : 5e9;
+  e.seconds_per_frequency = e.factorisations_per_frequency * e.flops / rate;
+  return e;
+}
+
 HarmonicSystem harmonic_system(const HarmonicProblem& p, double frequency_hz, bool voided) {
   Setup s;
   HarmonicResult r;

@@ -194,6 +194,22 @@ struct HarmonicResult {
 /// factorisation would not fit in memory, fails, or a residual exceeds max_residual.
 HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress = {});
 
+/// What one frequency of a sweep will cost, from MUMPS's symbolic analysis of its first system
+/// (no factorisation): for `voidsign check`.
+struct HarmonicEstimate {
+  std::size_t n_dofs = 0;
+  std::size_t shared_boundary = 0;  ///< Schur unknowns of the shared factorisation (0: two per frequency)
+  int factorisations_per_frequency = 1;
+  double factor_entries = 0;
+  double flops = 0;              ///< per factorisation
+  double bytes = 0;              ///< per factorisation, with the matrix
+  double available_bytes = 0;    ///< memory available now
+  double seconds_per_frequency = 0;  ///< rough: flops at a rate measured on the benchmark machine
+};
+
+/// Validates like solve_harmonic and analyses the first frequency's system.
+HarmonicEstimate estimate_harmonic(const HarmonicProblem& p);
+
 /// One assembled, constrained system S(ω) u = f, as solve_harmonic factorises it (for other
 /// solvers and benchmarks). For the plane wave, u is the total field inside the DRM box and the
 /// scattered field outside it.

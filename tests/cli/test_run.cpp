@@ -232,8 +232,14 @@ mesh: {order: 2, size: 4, near-void: 0.4, surface: 1.5}
     frequencies: {min: 2, max: 6, count: 3, spacing: linear}
     excitation: {wave: S, incidence: 0, amplitude: 1.0e-6}
 )");
+  // check: MUMPS's analysis of the sweep, both models on one factorisation per frequency.
+  Cmd c = run("check " + scn.string());
+  INFO(c.out);
+  CHECK(c.rc == 0);
+  CHECK(c.out.find("harmonic estimate:") != std::string::npos);
+  CHECK(c.out.find("1 factorisation(s) per frequency (both models, Schur complement on") != std::string::npos);
   const fs::path out = d / "out";
-  Cmd c = run("run " + scn.string() + " --out " + out.string());
+  c = run("run " + scn.string() + " --out " + out.string());
   INFO(c.out);
   REQUIRE(c.rc == 0);
   for (const char* f : {"summary.json", "modal/modes.csv", "modal/modes.pvd", "modal/mode_001.vtu", "modal/mode_004.vtu",
@@ -255,6 +261,7 @@ mesh: {order: 2, size: 4, near-void: 0.4, surface: 1.5}
   for (const auto& m : j["modal"]["modes"]) CHECK(m["f_hz"].get<double>() > 0);
   CHECK(j["harmonic"]["frequencies_hz"].size() == 3);
   CHECK(j["harmonic"]["residual"].get<double>() < 1e-8);
+  CHECK(j["harmonic"]["linear_solver"].get<std::string>().find("MUMPS") != std::string::npos);
   CHECK(j["harmonic"]["peak_anomaly"]["anomaly_absmax"].get<double>() > 0);
   // The anomaly is a fraction of the motion (outcrop 1e-6 m, amplified a few times at most).
   CHECK(j["harmonic"]["peak_anomaly"]["anomaly_absmax"].get<double>() < 1e-5);
