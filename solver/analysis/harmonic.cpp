@@ -427,9 +427,13 @@ void store_case(const Setup& s, double omega, std::size_t freq, std::size_t c, c
   (c == 0 ? model.u[freq] : model.u_extra[c - 1][freq]) = std::move(out);
 }
 
-double worst_residual(const ComplexMatrix& a, const Eigen::MatrixXcd& x, const Eigen::MatrixXcd& f) {
+// The largest ‖r‖/‖f‖ over the columns of residuals r and loads f (‖r‖ alone where f = 0).
+double worst_relative(const Eigen::MatrixXcd& res, const Eigen::MatrixXcd& f) {
   double worst = 0;
-  for (long c = 0; c < f.cols(); ++c) worst = std::max(worst, complex_relative_residual(a, x.col(c), f.col(c)));
+  for (long c = 0; c < f.cols(); ++c) {
+    const double scale = f.col(c).norm();
+    worst = std::max(worst, scale > 0 ? res.col(c).norm() / scale : res.col(c).norm());
+  }
   return worst;
 }
 
@@ -448,11 +452,11 @@ void solve_separate(const Setup& s, std::size_t freq, bool voided, Worker& w, Ha
     if (!w.ldlt.analysed()) w.ldlt.analyze(w.a, {}, s.d);
     w.ldlt.factorize(w.a);
     x = w.ldlt.solve(f);
-    if (worst_residual(w.a, x, f) > p.max_residual) x += w.ldlt.solve(f - w.a * x);
+    if (worst_relative(w.a * x - f, f) > p.max_residual) x += w.ldlt.solve(f - w.a * x);
   } catch (const ComplexSolveError& e) {
     fail(p, freq, name, e.what());
   }
-  const double worst = worst_residual(w.a, x, f);
+  const double worst = worst_relative(w.a * x - f, f);
   if (!(worst <= p.max_residual))
     fail(p, freq, name, "relative residual " + std::to_string(worst) + " above the limit: the system is singular or badly conditioned");
   HarmonicModel& model = voided ? r.voided : r.reference;
@@ -465,7 +469,7 @@ void solve_separate(const Setup& s, std::size_t freq, bool voided, Worker& w, Ha
 // The void cells' dynamic stiffness at ω on the void unknowns V = Γ ∪ I (local numbering of
 // Setup::plug_local), split into its blocks.
 struct Plug {
-  SparseMatrixC bb, bi, ii;
+  SparseMatrixC bb, bi, ib, ii;  // ib = biᵀ (the element matrices are symmetric)
   std::unique_ptr<Eigen::SparseLU<SparseMatrixC>> ii_lu;  // null when I is empty
   Eigen::MatrixXcd z;                                     // P_ΓΓ − P_ΓI P_II⁻¹ P_IΓ
 };
@@ -500,6 +504,7 @@ Plug plug_at(const Setup& s, double omega) {
   pl.bb.setFromTriplets(tbb.begin(), tbb.end());
   pl.bi.resize(nb, ni);
   pl.bi.setFromTriplets(tbi.begin(), tbi.end());
+  pl.ib = pl.bi.transpose();
   pl.ii.resize(ni, ni);
   pl.ii.setFromTriplets(tii.begin(), tii.end());
   pl.z = Eigen::MatrixXcd(pl.bb);
@@ -508,7 +513,7 @@ Plug plug_at(const Setup& s, double omega) {
     pl.ii.makeCompressed();
     pl.ii_lu->compute(pl.ii);
     if (pl.ii_lu->info() != Eigen::Success) throw ComplexSolveError("the void interior's dynamic stiffness is singular");
-    const Eigen::MatrixXcd w = pl.ii_lu->solve(Eigen::MatrixXcd(SparseMatrixC(pl.bi.transpose())));
+    const Eigen::MatrixXcd w = pl.ii_lu->solve(Eigen::MatrixXcd(pl.ib));
     pl.z -= pl.bi * w;
   }
   return pl;
@@ -565,7 +570,7 @@ void solve_shared(const Setup& s, std::size_t freq, Worker& w, HarmonicResult& r
       uv = x.leftCols(nc);
       ur = x.rightCols(nc);
       if (ni > 0) {
-        const Eigen::MatrixXcd ui = pl.ii_lu->solve(fi - SparseMatrixC(pl.bi.transpose()) * xg.rightCols(nc));
+        const Eigen::MatrixXcd ui = pl.ii_lu->solve(fi - pl.ib * xg.rightCols(nc));
         for (long k = 0; k < ni; ++k) ur.row(s.interior[static_cast<std::size_t>(k)]) = ui.row(k);
       }
     };
@@ -579,22 +584,14 @@ void solve_shared(const Setup& s, std::size_t freq, Worker& w, HarmonicResult& r
       const Eigen::MatrixXcd rb = pl.bb * xb + pl.bi * xi;
       for (long k = 0; k < nb; ++k) res.row(s.gamma[static_cast<std::size_t>(k)]) += rb.row(k);
       if (ni > 0) {
-        const Eigen::MatrixXcd ri = SparseMatrixC(pl.bi.transpose()) * xb + pl.ii * xi - gather_interior(fr);
+        const Eigen::MatrixXcd ri = pl.ib * xb + pl.ii * xi - gather_interior(fr);
         for (long k = 0; k < ni; ++k) res.row(s.interior[static_cast<std::size_t>(k)]) = ri.row(k);
       }
       return res;
     };
-    const auto relative = [](const Eigen::MatrixXcd& res, const Eigen::MatrixXcd& rhs) {
-      double worst = 0;
-      for (long c = 0; c < rhs.cols(); ++c) {
-        const double scale = rhs.col(c).norm();
-        worst = std::max(worst, scale > 0 ? res.col(c).norm() / scale : res.col(c).norm());
-      }
-      return worst;
-    };
     solve_both(fv, fr, xv, xr);
     Eigen::MatrixXcd res_v = w.a * xv - fv, res_r = residual_ref(xr);
-    if (relative(res_v, fv) > p.max_residual || relative(res_r, fr) > p.max_residual) {
+    if (worst_relative(res_v, fv) > p.max_residual || worst_relative(res_r, fr) > p.max_residual) {
       Eigen::MatrixXcd dv, dr;
       solve_both(-res_v, -res_r, dv, dr);
       xv += dv;
@@ -602,8 +599,8 @@ void solve_shared(const Setup& s, std::size_t freq, Worker& w, HarmonicResult& r
       res_v = w.a * xv - fv;
       res_r = residual_ref(xr);
     }
-    r.voided.residual[freq] = relative(res_v, fv);
-    r.reference.residual[freq] = relative(res_r, fr);
+    r.voided.residual[freq] = worst_relative(res_v, fv);
+    r.reference.residual[freq] = worst_relative(res_r, fr);
   } catch (const ComplexSolveError& e) {
     fail(p, freq, "models with and without voids", e.what());
   }

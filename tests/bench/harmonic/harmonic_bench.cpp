@@ -17,7 +17,6 @@
 
 #include "mesh/build/mesher.hpp"
 #include "solver/analysis/harmonic.hpp"
-#include "solver/la/complex_ldlt.hpp"
 
 using namespace voidsign;
 
@@ -100,20 +99,12 @@ int main(int argc, char** argv) {
               static_cast<std::size_t>(dim) * m.n_nodes(), n_freq);
   std::fflush(stdout);
   if (estimate_only) {
-    // MUMPS's analysis of the shared factorisation alone: what one frequency would cost.
-    const auto sys = solver::harmonic_system(p, p.frequencies_hz.front(), true);
-    std::vector<long> gamma;
-    std::vector<char> in_void(m.n_nodes(), 0), in_active(m.n_nodes(), 0);
-    for (std::size_t c = 0; c < m.n_cells(); ++c)
-      for (int a = 0; a < m.npc(); ++a) (m.void_id[c] >= 0 ? in_void : in_active)[static_cast<std::size_t>(m.cell(c)[a])] = 1;
-    for (std::size_t n = 0; n < m.n_nodes(); ++n)
-      if (in_void[n] && in_active[n])
-        for (int j = 0; j < dim; ++j) gamma.push_back(static_cast<long>(n) * dim + j);
-    solver::ComplexLdlt ldlt;
-    ldlt.analyze(sys.matrix, gamma, dim);
-    std::printf("analysis %.2f s: Schur unknowns %zu, estimated factor %.3g entries, %.3g flops, %.0f MB\n",
-                ldlt.analyse_seconds(), gamma.size(), ldlt.estimated_entries(), ldlt.estimated_flops(),
-                ldlt.estimated_bytes() / 1e6);
+    // MUMPS's analysis of the first frequency alone: what one frequency would cost.
+    const auto e = solver::estimate_harmonic(p);
+    std::printf("Schur unknowns %zu, %d factorisation(s) per frequency, estimated factor %.3g entries, %.3g flops, "
+                "%.0f MB each (%.0f MB available), about %.1f s per frequency\n",
+                e.shared_boundary, e.factorisations_per_frequency, e.factor_entries, e.flops, e.bytes / 1e6,
+                e.available_bytes / 1e6, e.seconds_per_frequency);
     return 0;
   }
   std::vector<std::pair<std::string, solver::FrequencyLoop>> loops;
