@@ -8,6 +8,7 @@
 #include <chrono>
 #include <climits>
 #include <complex>
+#include <cstdlib>
 #include <cstring>
 #include <mutex>
 #include <sstream>
@@ -72,7 +73,6 @@ Backend& backend(int slot) {
   });
   return slot == 1 && private_copy.entry ? private_copy : linked;
 }
-
 
 std::string mumps_error(const char* phase, int info1, int info2) {
   std::ostringstream os;
