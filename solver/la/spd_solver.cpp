@@ -194,7 +194,6 @@ class AmgCgSolver final : public SpdSolver {
   void analyze(const SparseMatrix&) override {}
   void factorize(const SparseMatrix& k) override {
     cg_.setup(k, dofs_per_node_, coords_);
-    x_prev_.resize(0);
   }
   Vector solve(const Vector& b) override {
     IterativeResult r = cg_.solve(b);
@@ -222,7 +221,6 @@ class AmgCgSolver final : public SpdSolver {
   int dofs_per_node_;
   const std::vector<std::array<double, 3>>* coords_;
   IterativeSolver cg_;
-  Vector x_prev_;
 };
 
 }  // namespace
