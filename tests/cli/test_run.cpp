@@ -267,6 +267,19 @@ mesh: {order: 2, size: 4, near-void: 0.4, surface: 1.5}
   CHECK(j["harmonic"]["peak_anomaly"]["anomaly_absmax"].get<double>() < 1e-5);
   for (const auto& e : fs::recursive_directory_iterator(out)) CHECK(e.path().string().find(".tmp-") == std::string::npos);
 
+  // With one copy of MUMPS (frequencies one at a time) the results are the same.
+  setenv("VOIDSIGN_ONE_MUMPS", "1", 1);
+  c = run("run " + scn.string() + " --out " + (d / "out-one").string());
+  unsetenv("VOIDSIGN_ONE_MUMPS");
+  INFO(c.out);
+  REQUIRE(c.rc == 0);
+  const auto j1 = nlohmann::json::parse(read(d / "out-one/summary.json"));
+  CHECK(j["harmonic"]["loop"].get<std::string>().find("parallel") != std::string::npos);
+  CHECK(j1["harmonic"]["loop"] == "sequential");
+  const double a0 = j["harmonic"]["peak_anomaly"]["anomaly_absmax"].get<double>();
+  const double a1 = j1["harmonic"]["peak_anomaly"]["anomaly_absmax"].get<double>();
+  CHECK(std::abs(a1 - a0) <= 1e-10 * a0);
+
   // Static + point source.
   const fs::path scn2 = write_file(d, "s2.yaml", base + R"(loads: {gravity: {k0: auto}}
 analyses:
