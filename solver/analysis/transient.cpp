@@ -623,14 +623,16 @@ TransientTraces ExplicitModel::run(int n_steps, int source_node, const Transient
     else
       step_rows<false>(ni, row_.data(), col_.data(), val_.data(), nullptr, wp, u, v, a_.data(), b_.data(), dt_, un, vn);
     if (pulse) {
-      // u⁰ at t_n; v⁰ at t_n − Δt/2, where the scheme takes the velocity of its damping term.
+      // u⁰ at t_n; v⁰ at t_n − Δt/2, where the scheme takes the velocity of its damping term
+      // (only a stiffness-proportional damping term has one on the DRM layer).
+      const bool damped = drm_beta_.nonZeros() > 0;
       double tmp[3];
       for (std::size_t k = 0; k < drm_nodes_.size(); ++k) {
         free_field(drm_nodes_[k], t, &gu[static_cast<Eigen::Index>(k * d)], tmp);
-        free_field(drm_nodes_[k], t - 0.5 * dt_, tmp, &gv[static_cast<Eigen::Index>(k * d)]);
+        if (damped) free_field(drm_nodes_[k], t - 0.5 * dt_, tmp, &gv[static_cast<Eigen::Index>(k * d)]);
       }
       fd.noalias() = drm_k_ * gu;
-      if (drm_beta_.nonZeros() > 0) fd.noalias() += drm_beta_ * gv;
+      if (damped) fd.noalias() += drm_beta_ * gv;
       for (Eigen::Index k = 0; k < fd.size(); ++k) {
         const auto i = static_cast<std::size_t>(drm_rows_[static_cast<std::size_t>(k)]);
         const double g = b_[i] * fd[k];
