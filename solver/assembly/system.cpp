@@ -78,41 +78,49 @@ SparseMatrix stiffness_pattern(const mesh::Mesh& m) {
 
 namespace {
 
-// k += sign · K_e over the cells for which take(c) is true.
-template <class Take>
-void add_cell_stiffness(const mesh::Mesh& m, Kinematics kin, long n_items, Take take,
-                        const std::function<const Elastic&(std::size_t)>& material_of, double sign, SparseMatrix& k) {
+// f(pos, p, q) for each entry (p, q) of cell c's element matrix (d unknowns per node) that falls
+// in the lower triangle of k: pos is its place in k's value array.
+template <class F>
+void for_each_lower_entry(const mesh::Mesh& m, int d, std::size_t c, const SparseMatrix& k, F f) {
   const int npc = m.npc();
-  const int d = dofs_per_node(kin);
   const int nd = d * npc;
   const int* outer = k.outerIndexPtr();
   const int* rows = k.innerIndexPtr();
+  int dof[3 * max_cell_nodes];
+  const int* v = m.cell(c);
+  for (int a = 0; a < npc; ++a)
+    for (int j = 0; j < d; ++j) dof[d * a + j] = d * v[a] + j;
+  for (int q = 0; q < nd; ++q) {
+    const int col = dof[q];
+    const int* b = rows + outer[col];
+    const int* e = rows + outer[col + 1];
+    for (int p = 0; p < nd; ++p) {
+      const int row = dof[p];
+      if (row >= col) f(std::lower_bound(b, e, row) - rows, p, q);
+    }
+  }
+}
+
+// k += sign · K_e over the cells take(i) ≥ 0, i < n_items.
+template <class Take>
+void add_cell_stiffness(const mesh::Mesh& m, Kinematics kin, long n_items, Take take,
+                        const std::function<const Elastic&(std::size_t)>& material_of, double sign, SparseMatrix& k) {
+  const int d = dofs_per_node(kin);
+  const int nd = d * m.npc();
   double* vals = k.valuePtr();
 #pragma omp parallel if (n_items > 512)
   {
     std::vector<double> ke(static_cast<std::size_t>(nd * nd));
-    int dof[3 * max_cell_nodes];
 #pragma omp for schedule(dynamic, 512)
     for (long i = 0; i < n_items; ++i) {
       const long c = take(i);
       if (c < 0) continue;
       const auto cu = static_cast<std::size_t>(c);
       stiffness(m, cu, material_of(cu), kin, ke);
-      const int* v = m.cell(cu);
-      for (int a = 0; a < npc; ++a)
-        for (int j = 0; j < d; ++j) dof[d * a + j] = d * v[a] + j;
-      for (int q = 0; q < nd; ++q) {
-        const int col = dof[q];
-        const int* b = rows + outer[col];
-        const int* e = rows + outer[col + 1];
-        for (int p = 0; p < nd; ++p) {
-          const int row = dof[p];
-          if (row < col) continue;
-          const auto pos = std::lower_bound(b, e, row) - rows;
+      for_each_lower_entry(m, d, cu, k, [&](long pos, int p, int q) {
 #pragma omp atomic
-          vals[pos] += sign * ke[p * nd + q];
-        }
-      }
+        vals[pos] += sign * ke[static_cast<std::size_t>(p * nd + q)];
+      });
     }
   }
 }
@@ -131,36 +139,16 @@ void subtract_stiffness(const mesh::Mesh& m, Kinematics kin, const std::vector<s
                         const std::function<const Elastic&(std::size_t)>& material_of, SparseMatrix& k) {
   // Entries that only the listed cells filled cancel to round-off; they are set to exact zeros
   // (as a fresh assembly without those cells would leave them), judged against their value before.
-  const int npc = m.npc();
-  const int d = dofs_per_node(kin);
-  const int nd = d * npc;
-  const int* outer = k.outerIndexPtr();
-  const int* rows = k.innerIndexPtr();
   double* vals = k.valuePtr();
   std::vector<std::pair<long, double>> touched;  // position, value before
   std::vector<char> seen(static_cast<std::size_t>(k.nonZeros()), 0);
-  std::vector<double> ke(static_cast<std::size_t>(nd * nd));
-  int dof[3 * max_cell_nodes];
-  for (std::size_t c : cells) {
-    stiffness(m, c, material_of(c), kin, ke);
-    const int* v = m.cell(c);
-    for (int a = 0; a < npc; ++a)
-      for (int j = 0; j < d; ++j) dof[d * a + j] = d * v[a] + j;
-    for (int q = 0; q < nd; ++q) {
-      const int col = dof[q];
-      const int* b = rows + outer[col];
-      const int* e = rows + outer[col + 1];
-      for (int p = 0; p < nd; ++p) {
-        const int row = dof[p];
-        if (row < col) continue;
-        const long pos = std::lower_bound(b, e, row) - rows;
-        if (!seen[static_cast<std::size_t>(pos)]) {
-          seen[static_cast<std::size_t>(pos)] = 1;
-          touched.emplace_back(pos, vals[pos]);
-        }
+  for (std::size_t c : cells)
+    for_each_lower_entry(m, dofs_per_node(kin), c, k, [&](long pos, int, int) {
+      if (!seen[static_cast<std::size_t>(pos)]) {
+        seen[static_cast<std::size_t>(pos)] = 1;
+        touched.emplace_back(pos, vals[pos]);
       }
-    }
-  }
+    });
   add_cell_stiffness(
       m, kin, static_cast<long>(cells.size()), [&](long i) { return static_cast<long>(cells[static_cast<std::size_t>(i)]); },
       material_of, -1.0, k);

@@ -7,13 +7,13 @@
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
-#include <fstream>
 #include <string>
 #include <vector>
 
 #include "solver/analysis/modal.hpp"
 #include "solver/assembly/system.hpp"
 #include "solver/fe/mass.hpp"
+#include "tests/bench/peak_memory.hpp"
 #include "tests/bench/structured_block.hpp"
 
 using namespace voidsign;
@@ -21,14 +21,6 @@ using namespace voidsign;
 namespace {
 
 double now() { return std::chrono::duration<double>(std::chrono::steady_clock::now().time_since_epoch()).count(); }
-
-double peak_rss_gib() {
-  std::ifstream in("/proc/self/status");
-  std::string line;
-  while (std::getline(in, line))
-    if (line.rfind("VmHWM:", 0) == 0) return std::strtod(line.c_str() + 6, nullptr) / (1024.0 * 1024.0);
-  return 0;
-}
 
 }  // namespace
 
@@ -78,6 +70,6 @@ int main(int argc, char** argv) {
   std::printf("modal %zu dofs (%zu free), %d modes, tolerance %.0e, subspace %d: assemble %.2f s, solve %.2f s (analysis + factorisation %.2f s, %d operator "
               "products, %d restarts), factor %.1f M nonzeros, worst residual %.1e, f1 %.4f Hz, f%d %.4f Hz, peak memory %.2f GiB\n",
               n_dofs, r.n_free, modes, opt.tolerance, opt.subspace, t_assemble, t_solve, r.seconds_factorize, r.operations, r.iterations, r.factor_nonzeros / 1e6,
-              worst, r.freq_hz.front(), modes, r.freq_hz.back(), peak_rss_gib());
+              worst, r.freq_hz.front(), modes, r.freq_hz.back(), bench::peak_rss_gib());
   return 0;
 }

@@ -7,12 +7,12 @@
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
-#include <fstream>
 #include <string>
 #include <vector>
 
 #include "solver/analysis/transient.hpp"
 #include "solver/assembly/system.hpp"
+#include "tests/bench/peak_memory.hpp"
 #include "tests/bench/structured_block.hpp"
 
 using namespace voidsign;
@@ -20,14 +20,6 @@ using namespace voidsign;
 namespace {
 
 double now() { return std::chrono::duration<double>(std::chrono::steady_clock::now().time_since_epoch()).count(); }
-
-double peak_rss_gib() {
-  std::ifstream in("/proc/self/status");
-  std::string line;
-  while (std::getline(in, line))
-    if (line.rfind("VmHWM:", 0) == 0) return std::strtod(line.c_str() + 6, nullptr) / (1024.0 * 1024.0);
-  return 0;
-}
 
 }  // namespace
 
@@ -73,7 +65,7 @@ int main(int argc, char** argv) {
       std::printf("transient %zu dofs, %zu nonzeros, xi %.2f: bound %.2f s, setup %.2f s, %.2f s per 1000 steps "
                   "(estimate %.2f s, %.0f MB), peak memory %.2f GiB\n",
                   em.n_free(), em.n_nonzeros(), xi, t_bound, t_setup, tr.loop_seconds * 1000 / steps,
-                  est.seconds_per_step * 1000, est.bytes / 1e6, peak_rss_gib());
+                  est.seconds_per_step * 1000, est.bytes / 1e6, bench::peak_rss_gib());
       std::fflush(stdout);
       if (xi > 0) break;
       // One stiffness product in the storage the step uses (node blocks when possible).
