@@ -289,8 +289,8 @@ std::pair<int, double> setup_force(Setup& s, Setup::Case& lc) {
   return {node, best};
 }
 
-ComplexVector right_hand_side(const Setup& s, double omega, const Setup::Case& lc_case) {
-  const HarmonicProblem& p = *s.p;
+// The load vector of one case at ω; `field` is the case's free field (plane waves only).
+ComplexVector right_hand_side(const Setup& s, double omega, const Setup::Case& lc_case, const IncidentField* field) {
   const mesh::Mesh& m = *s.m;
   ComplexVector f = ComplexVector::Zero(s.nd);
   if (lc_case.load.source == HarmonicProblem::Source::point_force) {
@@ -300,13 +300,12 @@ ComplexVector right_hand_side(const Setup& s, double omega, const Setup::Case& l
     return f;
   }
   // Domain reduction method: f_b = −S_be u⁰_e, f_e = +S_eb u⁰_b on each cell of the layer.
-  const IncidentField field(p.layers, lc_case.load.wave, omega, m.dim() == 3);
   const int npc = m.npc();
   const int nd = npc * s.d;
   std::vector<Complex> u0(static_cast<std::size_t>(nd)), fe(static_cast<std::size_t>(nd));
   for (const LayerCell& lc : s.layer_cells) {
     const int* v = m.cell(lc.cell);
-    for (int a = 0; a < npc; ++a) free_field_at(s, field, static_cast<std::size_t>(v[a]), &u0[static_cast<std::size_t>(s.d * a)]);
+    for (int a = 0; a < npc; ++a) free_field_at(s, *field, static_cast<std::size_t>(v[a]), &u0[static_cast<std::size_t>(s.d * a)]);
     const Complex fac = hysteretic_factor(lc.damping);
     const double w2 = omega * omega;
     for (int r = 0; r < nd; ++r) {
@@ -393,10 +392,23 @@ struct Worker {
   throw SolveFailure(os.str());
 }
 
+// Each load case's free field at ω (null for point forces): built once per frequency, read by
+// its loads and its outputs.
+using CaseFields = std::vector<std::unique_ptr<IncidentField>>;
+CaseFields case_fields(const Setup& s, double omega) {
+  CaseFields out;
+  for (const Setup::Case& c : s.cases)
+    out.push_back(c.load.source == HarmonicProblem::Source::plane_wave
+                      ? std::make_unique<IncidentField>(s.p->layers, c.load.wave, omega, s.m->dim() == 3)
+                      : nullptr);
+  return out;
+}
+
 // The right-hand sides of every load case at ω, one column each (constraints not yet applied).
-Eigen::MatrixXcd load_columns(const Setup& s, double omega) {
+Eigen::MatrixXcd load_columns(const Setup& s, double omega, const CaseFields& fields) {
   Eigen::MatrixXcd f(s.nd, static_cast<long>(s.cases.size()));
-  for (std::size_t c = 0; c < s.cases.size(); ++c) f.col(static_cast<long>(c)) = right_hand_side(s, omega, s.cases[c]);
+  for (std::size_t c = 0; c < s.cases.size(); ++c)
+    f.col(static_cast<long>(c)) = right_hand_side(s, omega, s.cases[c], fields[c].get());
   return f;
 }
 
@@ -407,14 +419,10 @@ void zero_fixed(const std::vector<char>& fixed, Eigen::MatrixXcd& f) {
 
 // Keeps the output nodes of solution x of load case c; outside the DRM box adds the free field
 // back to the scattered field.
-void store_case(const Setup& s, double omega, std::size_t freq, std::size_t c, const Eigen::Ref<const ComplexVector>& x,
-                HarmonicModel& model) {
-  const HarmonicProblem& p = *s.p;
-  const Setup::Case& lc = s.cases[c];
+void store_case(const Setup& s, const CaseFields& fields, std::size_t freq, std::size_t c,
+                const Eigen::Ref<const ComplexVector>& x, HarmonicModel& model) {
+  const IncidentField* field = fields[c].get();
   ComplexVector out(static_cast<long>(s.outputs.size()) * s.d);
-  std::unique_ptr<IncidentField> field;
-  if (lc.load.source == HarmonicProblem::Source::plane_wave)
-    field = std::make_unique<IncidentField>(p.layers, lc.load.wave, omega, s.m->dim() == 3);
   for (std::size_t k = 0; k < s.outputs.size(); ++k) {
     const auto n = static_cast<std::size_t>(s.outputs[k]);
     for (int j = 0; j < s.d; ++j) out[static_cast<long>(k) * s.d + j] = x[static_cast<long>(n) * s.d + j];
@@ -445,11 +453,12 @@ void solve_separate(const Setup& s, std::size_t freq, bool voided, Worker& w, Ha
   const char* name = voided ? "model with voids" : "model without voids";
   const double omega = 2 * std::numbers::pi * p.frequencies_hz[freq];
   assemble_model(s, omega, voided, w.a);
-  Eigen::MatrixXcd f = load_columns(s, omega);
+  const CaseFields fields = case_fields(s, omega);
+  Eigen::MatrixXcd f = load_columns(s, omega, fields);
   zero_fixed(voided ? s.fixed_void : s.fixed_ref, f);
   Eigen::MatrixXcd x;
   try {
-    if (!w.ldlt.analysed()) w.ldlt.analyze(w.a, {}, s.d);
+    if (!w.ldlt.analysed()) w.ldlt.analyze(w.a, s.gamma, s.d);  // Γ empty: each model alone
     w.ldlt.factorize(w.a);
     x = w.ldlt.solve(f);
     if (worst_relative(w.a * x - f, f) > p.max_residual) x += w.ldlt.solve(f - w.a * x);
@@ -460,7 +469,7 @@ void solve_separate(const Setup& s, std::size_t freq, bool voided, Worker& w, Ha
   if (!(worst <= p.max_residual))
     fail(p, freq, name, "relative residual " + std::to_string(worst) + " above the limit: the system is singular or badly conditioned");
   HarmonicModel& model = voided ? r.voided : r.reference;
-  for (std::size_t c = 0; c < s.cases.size(); ++c) store_case(s, omega, freq, c, x.col(static_cast<long>(c)), model);
+  for (std::size_t c = 0; c < s.cases.size(); ++c) store_case(s, fields, freq, c, x.col(static_cast<long>(c)), model);
   model.residual[freq] = worst;
   model.seconds[freq] = seconds_since(t0);
   model.factor_seconds[freq] = w.ldlt.factorize_seconds();
@@ -529,7 +538,8 @@ void solve_shared(const Setup& s, std::size_t freq, Worker& w, HarmonicResult& r
   const HarmonicProblem& p = *s.p;
   const double omega = 2 * std::numbers::pi * p.frequencies_hz[freq];
   assemble_model(s, omega, true, w.a);
-  const Eigen::MatrixXcd f = load_columns(s, omega);
+  const CaseFields fields = case_fields(s, omega);
+  const Eigen::MatrixXcd f = load_columns(s, omega, fields);
   Eigen::MatrixXcd fv = f, fr = f;
   zero_fixed(s.fixed_void, fv);
   zero_fixed(s.fixed_ref, fr);
@@ -610,8 +620,8 @@ void solve_shared(const Setup& s, std::size_t freq, Worker& w, HarmonicResult& r
            "relative residual " + std::to_string(model->residual[freq]) +
                " above the limit: the system is singular or badly conditioned");
   for (std::size_t c = 0; c < s.cases.size(); ++c) {
-    store_case(s, omega, freq, c, xv.col(static_cast<long>(c)), r.voided);
-    store_case(s, omega, freq, c, xr.col(static_cast<long>(c)), r.reference);
+    store_case(s, fields, freq, c, xv.col(static_cast<long>(c)), r.voided);
+    store_case(s, fields, freq, c, xr.col(static_cast<long>(c)), r.reference);
   }
   r.reference.seconds[freq] = seconds_since(t0);
   r.reference.factor_seconds[freq] = w.ldlt.factorize_seconds();
@@ -791,6 +801,19 @@ double available_bytes() {
   return 0;
 }
 
+// The symbolic analysis of worker w on the first frequency's matrix (the model with voids when
+// both share a factorisation); returns MUMPS's estimate of one factorisation's memory with the
+// worker's matrix storage.
+double analyse_first(const Setup& s, Worker& w) {
+  assemble_model(s, 2 * std::numbers::pi * s.p->frequencies_hz[0], !s.gamma.empty(), w.a);
+  try {
+    w.ldlt.analyze(w.a, s.gamma, s.d);
+  } catch (const ComplexSolveError& e) {
+    fail(*s.p, 0, "symbolic analysis", e.what());
+  }
+  return w.ldlt.estimated_bytes() + 40.0 * static_cast<double>(s.pattern.nonZeros());
+}
+
 }  // namespace
 
 HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress) {
@@ -845,17 +868,8 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
   // factor per thread fits in 60 % of the available memory by MUMPS's estimate after the first
   // analysis. Otherwise (and for FrequencyLoop::sequential) one frequency at a time, the BLAS
   // using its own threads. FrequencyLoop::parallel skips the checks.
-  {
-    Worker& w = *workers[0];
-    assemble_model(s, 2 * std::numbers::pi * p.frequencies_hz[0], shared, w.a);
-    try {
-      w.ldlt.analyze(w.a, shared ? s.gamma : std::vector<long>{}, s.d);
-    } catch (const ComplexSolveError& e) {
-      fail(p, 0, "symbolic analysis", e.what());
-    }
-  }
   // Refuse a sweep whose single factorisation would not fit, before it is attempted.
-  const double one_factor = workers[0]->ldlt.estimated_bytes() + 40.0 * static_cast<double>(s.pattern.nonZeros());
+  const double one_factor = analyse_first(s, *workers[0]);
   const double limit = p.memory_limit_bytes > 0 ? p.memory_limit_bytes : 0.9 * available_bytes();
   if (limit > 0 && one_factor > limit) {
     std::ostringstream os;
@@ -928,19 +942,14 @@ HarmonicEstimate estimate_harmonic(const HarmonicProblem& p) {
   prepare(p, s, r);
   Worker w(s, 0);
   const bool shared = !s.gamma.empty();
-  assemble_model(s, 2 * std::numbers::pi * p.frequencies_hz[0], shared, w.a);
-  try {
-    w.ldlt.analyze(w.a, shared ? s.gamma : std::vector<long>{}, s.d);
-  } catch (const ComplexSolveError& e) {
-    fail(p, 0, "symbolic analysis", e.what());
-  }
+  const double bytes = analyse_first(s, w);
   HarmonicEstimate e;
   e.n_dofs = static_cast<std::size_t>(s.nd);
   e.shared_boundary = s.gamma.size();
   e.factorisations_per_frequency = shared || !p.with_voids ? 1 : 2;
   e.factor_entries = w.ldlt.estimated_entries();
   e.flops = w.ldlt.estimated_flops();
-  e.bytes = w.ldlt.estimated_bytes() + 40.0 * static_cast<double>(s.pattern.nonZeros());
+  e.bytes = bytes;
   e.available_bytes = available_bytes();
   // Rates measured with harmonic_bench on the 2-core benchmark machine (docs/benchmarks.md):
   // about 5 Gflop/s per frequency for 2D fronts, 18 Gflop/s for the large fronts of 3D.
@@ -957,7 +966,7 @@ HarmonicSystem harmonic_system(const HarmonicProblem& p, double frequency_hz, bo
   const double omega = 2 * std::numbers::pi * frequency_hz;
   sys.matrix = s.pattern;
   assemble_model(s, omega, voided, sys.matrix);
-  sys.rhs = right_hand_side(s, omega, s.cases.front());
+  sys.rhs = right_hand_side(s, omega, s.cases.front(), case_fields(s, omega).front().get());
   const std::vector<char>& fixed = voided ? s.fixed_void : s.fixed_ref;
   for (long j = 0; j < s.nd; ++j)
     if (fixed[static_cast<std::size_t>(j)]) sys.rhs[j] = 0;
