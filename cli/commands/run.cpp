@@ -314,7 +314,7 @@ int check_command(const fs::path& file) {
   auto m = build_checked_mesh(s, &q, &progress);
   const double t_mesh = std::chrono::duration<double>(std::chrono::steady_clock::now() - t0).count();
   const double dofs = (m->dim() == 3 ? 3.0 : 2.0) * static_cast<double>(m->n_nodes());
-  const RunEstimate after = estimate_for(static_cast<double>(m->n_cells()), dofs);
+  const RunEstimate after = estimate_for(static_cast<double>(m->n_cells()), dofs, m->dim() == 3);
   std::printf("mesh: %zu nodes, %zu elements (order %d), %.0f unknowns, built in %.2f s\n", m->n_nodes(), m->n_cells(),
               s.mesh.order, dofs, t_mesh);
   std::printf("element quality: min %.3f, mean %.3f (1 = equilateral); no inverted elements\n", q.min_quality,

@@ -53,7 +53,7 @@ struct RunEstimate {
   double cells = 0, dofs = 0, memory_bytes = 0, seconds = 0;
 };
 RunEstimate estimate_run(const Scenario& s);
-/// The same from known counts (after meshing).
-RunEstimate estimate_for(double cells, double dofs);
+/// The same from known counts (after meshing), for a 3D model or a 2D one.
+RunEstimate estimate_for(double cells, double dofs, bool three_d);
 
 }  // namespace voidsign::cli

@@ -9,7 +9,6 @@
 #include <Eigen/Dense>
 #include <Eigen/SparseLU>
 #include <exception>
-#include <fstream>
 #include <limits>
 #include <memory>
 #include <numbers>
@@ -19,6 +18,7 @@
 #include "solver/analysis/plane_wave.hpp"
 #include "solver/assembly/system.hpp"
 #include "solver/la/complex_ldlt.hpp"
+#include "solver/la/memory.hpp"
 
 namespace voidsign::solver {
 
@@ -792,15 +792,6 @@ void prepare(const HarmonicProblem& p, Setup& s, HarmonicResult& r) {
   r.setup_seconds = seconds_since(t_setup);
 }
 
-double available_bytes() {
-  std::ifstream in("/proc/meminfo");
-  std::string key, unit;
-  double value = 0;
-  while (in >> key >> value >> unit)
-    if (key == "MemAvailable:") return value * 1024;
-  return 0;
-}
-
 // The symbolic analysis of worker w on the first frequency's matrix (the model with voids when
 // both share a factorisation); returns MUMPS's estimate of one factorisation's memory with the
 // worker's matrix storage.
@@ -870,7 +861,7 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
   // using its own threads. FrequencyLoop::parallel skips the checks.
   // Refuse a sweep whose single factorisation would not fit, before it is attempted.
   const double one_factor = analyse_first(s, *workers[0]);
-  const double limit = p.memory_limit_bytes > 0 ? p.memory_limit_bytes : 0.9 * available_bytes();
+  const double limit = p.memory_limit_bytes > 0 ? p.memory_limit_bytes : 0.9 * available_memory_bytes();
   if (limit > 0 && one_factor > limit) {
     std::ostringstream os;
     os.precision(3);
@@ -883,7 +874,7 @@ HarmonicResult solve_harmonic(const HarmonicProblem& p, const Progress& progress
   bool parallel = n_threads > 1 && p.loop == FrequencyLoop::parallel;
   if (n_threads > 1 && p.loop == FrequencyLoop::automatic && ComplexLdlt::concurrent_slots()) {
     const double need = n_threads * one_factor;
-    const double avail = available_bytes();
+    const double avail = available_memory_bytes();
     parallel = avail <= 0 || need < 0.6 * avail;
   }
   const int blas_before = parallel ? set_blas_threads(1) : 0;
@@ -950,7 +941,7 @@ HarmonicEstimate estimate_harmonic(const HarmonicProblem& p) {
   e.factor_entries = w.ldlt.estimated_entries();
   e.flops = w.ldlt.estimated_flops();
   e.bytes = bytes;
-  e.available_bytes = available_bytes();
+  e.available_bytes = available_memory_bytes();
   // Rates measured with harmonic_bench on the 2-core benchmark machine (docs/benchmarks.md):
   // about 5 Gflop/s per frequency for 2D fronts, 18 Gflop/s for the large fronts of 3D.
   const double rate = s.d == 3 ? 18e9 : 5e9;

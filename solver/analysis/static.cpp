@@ -8,8 +8,12 @@
 #include <chrono>
 #include <cmath>
 #include <limits>
+#include <exception>
+#include <future>
+#include <mutex>
 #include <sstream>
 
+#include "solver/la/memory.hpp"
 #include "solver/la/spd_solver.hpp"
 
 namespace voidsign::solver {
@@ -373,7 +377,9 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress) {
   const Eigen::Index nd = d * static_cast<Eigen::Index>(m.n_nodes());
   if ((m.dim() == 3) != (p.kinematics == Kinematics::solid))
     throw std::invalid_argument("solve_static: mesh dimension and kinematics disagree");
+  std::mutex report_lock;  // the two models may report from two threads
   auto report = [&](std::string_view step, double frac) {
+    const std::lock_guard<std::mutex> held(report_lock);
     if (progress) progress(step, frac);
   };
   StaticResult res;
@@ -441,7 +447,18 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress) {
 
   t0 = Clock::now();
   report("analyse", 0);
-  const auto solver = make_spd_solver(p.solver, static_cast<double>(nd), d, &m.nodes);
+  // The two models at the same time, one per core, where the solver allows it and the second
+  // model's working set fits: for the iterative solver a copy of the matrix and its multigrid
+  // hierarchy, measured at 22 bytes per nonzero of the full pattern (docs/benchmarks.md);
+  // 30 are asked for.
+  const double n_dofs = static_cast<double>(nd);
+  const double second_model_bytes = 30.0 * (2.0 * static_cast<double>(k_void.nonZeros()) - n_dofs);
+  const bool in_parallel = p.models_in_parallel && solvers_run_concurrently(p.solver, n_dofs, d) &&
+                           second_model_bytes < 0.8 * available_memory_bytes();
+  const SolverSlot first_slot{0, in_parallel ? 1 : 0}, second_slot{1, 1};
+  const auto solver = make_spd_solver(p.solver, n_dofs, d, &m.nodes, first_slot);
+  const auto second = in_parallel ? make_spd_solver(p.solver, n_dofs, d, &m.nodes, second_slot) : nullptr;
+  SpdSolver& void_solver = second ? *second : *solver;
   {
     // The two matrices differ only on the nodes of void cells: wall nodes (shared with the
     // ground around) and inner ones.
@@ -455,116 +472,144 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress) {
     solver->set_variable_nodes(wall, inner);
   }
   solver->analyze(k_ref);
+  if (second) second->analyze(k_void);
   res.timings.analyse = seconds_since(t0);
 
-  auto factor = [&](const SparseMatrix& k, const char* name, bool variant) {
+  // Each model keeps its own clock; run side by side, the phases take the longer of the two.
+  StaticTimings ref_time, void_time;
+  auto factor = [&](SpdSolver& s, const SparseMatrix& k, const char* name, bool variant, StaticTimings& time) {
     auto tf = Clock::now();
     report(std::string("factorise ") + name, 0);
     try {
       if (variant)
-        solver->factorize_variant(k);
+        s.factorize_variant(k);
       else
-        solver->factorize(k);
+        s.factorize(k);
     } catch (const std::runtime_error&) {
       throw SolveFailure(std::string("the ") + name +
                          " stiffness matrix is not positive definite: part of the model is free to move"
                          " (a detached block of ground, or a void cutting the model in two?)");
     }
-    res.timings.factorize += seconds_since(tf);
-    res.factor_nonzeros = std::max(res.factor_nonzeros, solver->factor_nonzeros());
+    time.factorize += seconds_since(tf);
   };
-  auto solve = [&](const Vector& b) {
+  auto solve_with = [](SpdSolver& s, const Vector& b) {
     try {
-      return solver->solve(b);
+      return s.solve(b);
     } catch (const std::runtime_error& e) {
       throw SolveFailure(e.what());
     }
   };
 
-  // Model without voids.
-  factor(k_ref, "reference", false);
-  auto ts = Clock::now();
-  const Vector zero;
-  const Vector rhs_ref = constrained_rhs(k_ref, k_ref, outer, f_ref, zero);
-  res.reference.u = solve(rhs_ref);
-  res.reference.residual = relative_residual(k_ref, res.reference.u, rhs_ref);
-  res.reference.load_norm = rhs_ref.norm();
-  res.timings.solve += seconds_since(ts);
-  if (!(res.reference.residual < max_relative_residual))
-    throw SolveFailure(residual_message("model without voids", res.reference.residual));
+  auto solve_reference = [&] {
+    factor(*solver, k_ref, "reference", false, ref_time);
+    const auto ts = Clock::now();
+    const Vector zero;
+    const Vector rhs_ref = constrained_rhs(k_ref, k_ref, outer, f_ref, zero);
+    res.reference.u = solve_with(*solver, rhs_ref);
+    res.reference.residual = relative_residual(k_ref, res.reference.u, rhs_ref);
+    res.reference.load_norm = rhs_ref.norm();
+    ref_time.solve += seconds_since(ts);
+    if (!(res.reference.residual < max_relative_residual))
+      throw SolveFailure(residual_message("model without voids", res.reference.residual));
+  };
 
-  // Model with voids.
-  factor(k_void, "with voids", true);
-  ts = Clock::now();
-  Vector g = Vector::Zero(nd);
-  for (const Loss& l : losses) {
-    const VoidLoad& vl = p.voids[static_cast<std::size_t>(l.void_id)];
-    for (int n : l.nodes) {
-      std::array<double, 3> r{m.nodes[n][0] - vl.cx, m.nodes[n][1] - vl.cy, m.nodes[n][2] - vl.cz};
-      const double along = r[0] * vl.axis[0] + r[1] * vl.axis[1] + r[2] * vl.axis[2];
-      for (int i = 0; i < 3; ++i) r[i] -= along * vl.axis[i];  // toward the axis line, if any
-      if (d == 2) {
-        g[2 * n] = -l.eps * r[0];
-        g[2 * n + 1] = -l.eps * r[2];
-      } else {
-        for (int j = 0; j < 3; ++j) g[3 * n + j] = -l.eps * r[static_cast<std::size_t>(j)];
+  auto solve_voided = [&] {
+    factor(void_solver, k_void, "with voids", !second, void_time);
+    const auto ts = Clock::now();
+    auto solve = [&](const Vector& b) { return solve_with(void_solver, b); };
+    Vector g = Vector::Zero(nd);
+    for (const Loss& l : losses) {
+      const VoidLoad& vl = p.voids[static_cast<std::size_t>(l.void_id)];
+      for (int n : l.nodes) {
+        std::array<double, 3> r{m.nodes[n][0] - vl.cx, m.nodes[n][1] - vl.cy, m.nodes[n][2] - vl.cz};
+        const double along = r[0] * vl.axis[0] + r[1] * vl.axis[1] + r[2] * vl.axis[2];
+        for (int i = 0; i < 3; ++i) r[i] -= along * vl.axis[i];  // toward the axis line, if any
+        if (d == 2) {
+          g[2 * n] = -l.eps * r[0];
+          g[2 * n + 1] = -l.eps * r[2];
+        } else {
+          for (int j = 0; j < 3; ++j) g[3 * n + j] = -l.eps * r[static_cast<std::size_t>(j)];
+        }
       }
     }
-  }
-  Vector rhs = constrained_rhs(k_void0.size() ? k_void0 : k_void, k_void, fixed_void, f_void, g);
-  Vector u = solve(rhs);
-  res.voided.wall_translation.assign(static_cast<std::size_t>(m.n_voids), {0.0, 0.0, 0.0});
-  const bool any_free = std::any_of(losses.begin(), losses.end(), [&](const Loss& l) {
-    return p.voids[static_cast<std::size_t>(l.void_id)].wall_free;
-  });
-  if (any_free) {
-    // Superpose unit wall translations so that each wall carries no net force (the void is
-    // free to move, as in Verruijt & Booker 1996).
-    const bool axi = p.kinematics == Kinematics::axisymmetric;
-    std::vector<std::pair<std::size_t, int>> modes;  // (loss index, dof direction)
-    for (std::size_t i = 0; i < losses.size(); ++i)
-      if (p.voids[static_cast<std::size_t>(losses[i].void_id)].wall_free)
-        for (int j = axi ? 1 : 0; j < d; ++j) modes.push_back({i, j});
-    auto net_force = [&](const Vector& uu, const Vector& ff) {
-      const Vector r = k_void0.selfadjointView<Eigen::Lower>() * uu - ff;
-      Vector out(static_cast<Eigen::Index>(modes.size()));
+    Vector rhs = constrained_rhs(k_void0.size() ? k_void0 : k_void, k_void, fixed_void, f_void, g);
+    Vector u = solve(rhs);
+    res.voided.wall_translation.assign(static_cast<std::size_t>(m.n_voids), {0.0, 0.0, 0.0});
+    const bool any_free = std::any_of(losses.begin(), losses.end(), [&](const Loss& l) {
+      return p.voids[static_cast<std::size_t>(l.void_id)].wall_free;
+    });
+    if (any_free) {
+      // Superpose unit wall translations so that each wall carries no net force (the void is
+      // free to move, as in Verruijt & Booker 1996).
+      const bool axi = p.kinematics == Kinematics::axisymmetric;
+      std::vector<std::pair<std::size_t, int>> modes;  // (loss index, dof direction)
+      for (std::size_t i = 0; i < losses.size(); ++i)
+        if (p.voids[static_cast<std::size_t>(losses[i].void_id)].wall_free)
+          for (int j = axi ? 1 : 0; j < d; ++j) modes.push_back({i, j});
+      auto net_force = [&](const Vector& uu, const Vector& ff) {
+        const Vector r = k_void0.selfadjointView<Eigen::Lower>() * uu - ff;
+        Vector out(static_cast<Eigen::Index>(modes.size()));
+        for (std::size_t q = 0; q < modes.size(); ++q) {
+          double s = 0;
+          for (int n : losses[modes[q].first].nodes) s += r[d * n + modes[q].second];
+          out[static_cast<Eigen::Index>(q)] = s;
+        }
+        return out;
+      };
+      const auto nq = static_cast<Eigen::Index>(modes.size());
+      Eigen::MatrixXd a(nq, nq);
+      std::vector<Vector> unit_u, unit_rhs;
       for (std::size_t q = 0; q < modes.size(); ++q) {
-        double s = 0;
-        for (int n : losses[modes[q].first].nodes) s += r[d * n + modes[q].second];
-        out[static_cast<Eigen::Index>(q)] = s;
+        Vector gq = Vector::Zero(nd);
+        for (int n : losses[modes[q].first].nodes) gq[d * n + modes[q].second] = 1.0;
+        unit_rhs.push_back(constrained_rhs(k_void0, k_void, fixed_void, Vector::Zero(nd), gq));
+        unit_u.push_back(solve(unit_rhs.back()));
+        a.col(static_cast<Eigen::Index>(q)) = net_force(unit_u.back(), Vector::Zero(nd));
       }
-      return out;
-    };
-    const auto nq = static_cast<Eigen::Index>(modes.size());
-    Eigen::MatrixXd a(nq, nq);
-    std::vector<Vector> unit_u, unit_rhs;
-    for (std::size_t q = 0; q < modes.size(); ++q) {
-      Vector gq = Vector::Zero(nd);
-      for (int n : losses[modes[q].first].nodes) gq[d * n + modes[q].second] = 1.0;
-      unit_rhs.push_back(constrained_rhs(k_void0, k_void, fixed_void, Vector::Zero(nd), gq));
-      unit_u.push_back(solve(unit_rhs.back()));
-      a.col(static_cast<Eigen::Index>(q)) = net_force(unit_u.back(), Vector::Zero(nd));
+      const Vector t = a.fullPivLu().solve(-net_force(u, f_void));
+      for (std::size_t q = 0; q < modes.size(); ++q) {
+        const double tq = t[static_cast<Eigen::Index>(q)];
+        u += tq * unit_u[q];
+        rhs += tq * unit_rhs[q];
+        const int dir = d == 2 && modes[q].second == 1 ? 2 : modes[q].second;  // 2D dof 1 is z
+        res.voided.wall_translation[static_cast<std::size_t>(losses[modes[q].first].void_id)][static_cast<std::size_t>(dir)] = tq;
+      }
     }
-    const Vector t = a.fullPivLu().solve(-net_force(u, f_void));
-    for (std::size_t q = 0; q < modes.size(); ++q) {
-      const double tq = t[static_cast<Eigen::Index>(q)];
-      u += tq * unit_u[q];
-      rhs += tq * unit_rhs[q];
-      const int dir = d == 2 && modes[q].second == 1 ? 2 : modes[q].second;  // 2D dof 1 is z
-      res.voided.wall_translation[static_cast<std::size_t>(losses[modes[q].first].void_id)][static_cast<std::size_t>(dir)] = tq;
-    }
-  }
-  res.voided.u = std::move(u);
-  res.voided.residual = relative_residual(k_void, res.voided.u, rhs);
-  res.voided.load_norm = rhs.norm();
-  res.timings.solve += seconds_since(ts);
-  if (!(res.voided.residual < max_relative_residual))
-    throw SolveFailure(residual_message("model with voids", res.voided.residual));
+    res.voided.u = std::move(u);
+    res.voided.residual = relative_residual(k_void, res.voided.u, rhs);
+    res.voided.load_norm = rhs.norm();
+    void_time.solve += seconds_since(ts);
+    if (!(res.voided.residual < max_relative_residual))
+      throw SolveFailure(residual_message("model with voids", res.voided.residual));
+  };
 
-  res.iterations = solver->total_iterations;
+  if (second) {
+    // The model with voids on a second thread; the first error (the reference's first) wins.
+    auto job = std::async(std::launch::async, solve_voided);
+    std::exception_ptr reference_error;
+    try {
+      solve_reference();
+    } catch (...) {
+      reference_error = std::current_exception();
+    }
+    job.wait();
+    if (reference_error) std::rethrow_exception(reference_error);
+    job.get();
+    res.timings.factorize = std::max(ref_time.factorize, void_time.factorize);
+    res.timings.solve = std::max(ref_time.solve, void_time.solve);
+  } else {
+    solve_reference();
+    solve_voided();
+    res.timings.factorize = ref_time.factorize + void_time.factorize;
+    res.timings.solve = ref_time.solve + void_time.solve;
+  }
+  res.models_in_parallel = second != nullptr;
+  res.factor_nonzeros = std::max(solver->factor_nonzeros(), void_solver.factor_nonzeros());
+  res.iterations = solver->total_iterations + (second ? second->total_iterations : 0);
   // Named after the set-up: the iterative solver knows its method only then.
   res.solver = solver->name();
   if (!solver->variant_method.empty()) res.solver += "; model with voids: " + solver->variant_method;
+  if (second) res.solver += "; the two models at once, one per core";
   report("stresses", 0);
   centroid_fields(p, res.reference);
   centroid_fields(p, res.voided);

@@ -69,6 +69,9 @@ struct StaticProblem {
   Boundaries boundaries;
   double gravity = standard_gravity;
   SolverChoice solver = SolverChoice::automatic;
+  /// Solve the two models at the same time, one per core, where the solver allows it (the
+  /// iterative solver with two copies of hypre) and memory suffices.
+  bool models_in_parallel = true;
 };
 
 /// Geostatic in-situ stress of a layered half-space: σ_zz = −g ∫ρ dz, σ_xx = σ_yy = k0 σ_zz.
@@ -99,6 +102,7 @@ struct StaticResult {
   double factor_nonzeros = 0;
   std::string solver;   ///< the linear solver used
   int iterations = 0;   ///< conjugate-gradient iterations over all solves (0 for direct)
+  bool models_in_parallel = false;  ///< the two models were solved at the same time
 };
 
 /// Progress: step name and fraction done in [0, 1].

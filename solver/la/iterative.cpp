@@ -1,9 +1,7 @@
 // SPDX-License-Identifier: GPL-3.0-or-later
 #include "solver/la/iterative.hpp"
 
-#include <HYPRE.h>
-#include <_hypre_parcsr_ls.h>  // the public API plus the rigid-body interpolation switches
-#include <mpi.h>
+#include <_hypre_parcsr_ls.h>  // the vectors' and the matrix's arrays
 #include <omp.h>
 
 #include <algorithm>
@@ -15,7 +13,7 @@
 #include <stdexcept>
 #include <type_traits>
 
-#include "solver/la/mpi_runtime.hpp"
+#include "solver/la/hypre_library.hpp"
 
 namespace voidsign::solver {
 
@@ -26,18 +24,6 @@ static_assert(std::is_same_v<HYPRE_Real, double>, "hypre not built in double pre
 
 using Clock = std::chrono::steady_clock;
 double since(Clock::time_point t0) { return std::chrono::duration<double>(Clock::now() - t0).count(); }
-
-void shutdown_hypre() { HYPRE_Finalize(); }
-
-/// MPI (solver/la/mpi_runtime.hpp) and hypre, once.
-void ensure_runtime() {
-  static std::once_flag once;
-  std::call_once(once, [] {
-    ensure_mpi();
-    HYPRE_Init();
-    std::atexit(shutdown_hypre);
-  });
-}
 
 /// Row-compressed view of the full symmetric matrix, from our arrays or hypre's.
 struct CsrView {
@@ -89,6 +75,7 @@ struct IterativeSolver::Impl {
   std::string method;
   std::string failure;  ///< hypre's message when the AMG set-up failed
 
+  HypreLibrary* lib = nullptr;  ///< the copy of hypre that holds the objects below
   HYPRE_IJMatrix ij_a = nullptr;
   HYPRE_ParCSRMatrix par_a = nullptr;
   HYPRE_Solver amg = nullptr;
@@ -97,17 +84,27 @@ struct IterativeSolver::Impl {
   std::vector<HYPRE_IJVector> ij_modes;
   std::vector<HYPRE_ParVector> par_modes;
 
-  ~Impl() { release_hypre(); }
+  ~Impl() {
+    const auto held = hold();
+    release_hypre();
+  }
 
+  /// The lock of this solver's copy of hypre (none before the first AMG set-up).
+  std::unique_lock<std::mutex> hold() const {
+    return lib ? std::unique_lock<std::mutex>(lib->lock) : std::unique_lock<std::mutex>();
+  }
+
+  /// With hold().
   void release_hypre() {
-    if (amg) HYPRE_BoomerAMGDestroy(amg);  // before the modes it points to
+    if (!lib) return;
+    if (amg) lib->HYPRE_BoomerAMGDestroy(amg);  // before the modes it points to
     amg = nullptr;
-    for (auto v : ij_modes) HYPRE_IJVectorDestroy(v);
+    for (auto v : ij_modes) lib->HYPRE_IJVectorDestroy(v);
     ij_modes.clear();
     par_modes.clear();
-    if (ij_r) HYPRE_IJVectorDestroy(ij_r);
-    if (ij_z) HYPRE_IJVectorDestroy(ij_z);
-    if (ij_a) HYPRE_IJMatrixDestroy(ij_a);
+    if (ij_r) lib->HYPRE_IJVectorDestroy(ij_r);
+    if (ij_z) lib->HYPRE_IJVectorDestroy(ij_z);
+    if (ij_a) lib->HYPRE_IJMatrixDestroy(ij_a);
     ij_r = ij_z = nullptr;
     par_r = par_z = nullptr;
     ij_a = nullptr;
@@ -116,11 +113,11 @@ struct IterativeSolver::Impl {
 
   HYPRE_IJVector new_vector(HYPRE_ParVector* par) const {
     HYPRE_IJVector v = nullptr;
-    HYPRE_IJVectorCreate(MPI_COMM_SELF, 0, n - 1, &v);
-    HYPRE_IJVectorSetObjectType(v, HYPRE_PARCSR);
-    HYPRE_IJVectorInitialize(v);
-    HYPRE_IJVectorAssemble(v);
-    HYPRE_IJVectorGetObject(v, reinterpret_cast<void**>(par));
+    lib->HYPRE_IJVectorCreate(lib->comm, 0, n - 1, &v);
+    lib->HYPRE_IJVectorSetObjectType(v, HYPRE_PARCSR);
+    lib->HYPRE_IJVectorInitialize(v);
+    lib->HYPRE_IJVectorAssemble(v);
+    lib->HYPRE_IJVectorGetObject(v, reinterpret_cast<void**>(par));
     return v;
   }
 
@@ -131,51 +128,60 @@ struct IterativeSolver::Impl {
   /// Builds BoomerAMG on a copy of the matrix; on success our own copy is released.
   /// Returns false (and leaves nothing behind) when hypre reports an error.
   bool setup_amg(const std::vector<std::array<double, 3>>* coords, const std::vector<char>& isolated) {
-    ensure_runtime();
-    HYPRE_ClearAllErrors();
-    HYPRE_IJMatrixCreate(MPI_COMM_SELF, 0, n - 1, 0, n - 1, &ij_a);
-    HYPRE_IJMatrixSetObjectType(ij_a, HYPRE_PARCSR);
+    lib = &hypre_library(opt.library_copy);
+    const auto held = hold();
+    lib->HYPRE_ClearAllErrors();
+    lib->HYPRE_IJMatrixCreate(lib->comm, 0, n - 1, 0, n - 1, &ij_a);
+    lib->HYPRE_IJMatrixSetObjectType(ij_a, HYPRE_PARCSR);
     std::vector<HYPRE_Int> sizes(n), zeros(n, 0);
     for (int i = 0; i < n; ++i) sizes[i] = ptr[i + 1] - ptr[i];
-    HYPRE_IJMatrixSetDiagOffdSizes(ij_a, sizes.data(), zeros.data());
-    HYPRE_IJMatrixInitialize(ij_a);
+    lib->HYPRE_IJMatrixSetDiagOffdSizes(ij_a, sizes.data(), zeros.data());
+    lib->HYPRE_IJMatrixInitialize(ij_a);
     {
       std::vector<HYPRE_BigInt> rows(n);
       for (int i = 0; i < n; ++i) rows[i] = i;
       if constexpr (std::is_same_v<HYPRE_BigInt, int>) {
-        HYPRE_IJMatrixSetValues(ij_a, n, sizes.data(), rows.data(), col.data(), val.data());
+        lib->HYPRE_IJMatrixSetValues(ij_a, n, sizes.data(), rows.data(), col.data(), val.data());
       } else {
         std::vector<HYPRE_BigInt> cols(col.begin(), col.end());
-        HYPRE_IJMatrixSetValues(ij_a, n, sizes.data(), rows.data(), cols.data(), val.data());
+        lib->HYPRE_IJMatrixSetValues(ij_a, n, sizes.data(), rows.data(), cols.data(), val.data());
       }
     }
-    HYPRE_IJMatrixAssemble(ij_a);
-    HYPRE_IJMatrixGetObject(ij_a, reinterpret_cast<void**>(&par_a));
+    lib->HYPRE_IJMatrixAssemble(ij_a);
+    lib->HYPRE_IJMatrixGetObject(ij_a, reinterpret_cast<void**>(&par_a));
     ij_r = new_vector(&par_r);
     ij_z = new_vector(&par_z);
+    if (const HYPRE_Int code = lib->HYPRE_GetError()) return fail("matrix", code);
+    // Our products now read hypre's copy (one rank: everything is in the diagonal part); ours
+    // goes before the hierarchy is built, so that the two are never held at once.
+    hypre_CSRMatrix* d = hypre_ParCSRMatrixDiag(reinterpret_cast<hypre_ParCSRMatrix*>(par_a));
+    a = {n, hypre_CSRMatrixI(d), hypre_CSRMatrixJ(d), hypre_CSRMatrixData(d)};
+    std::vector<int>().swap(ptr);
+    std::vector<int>().swap(col);
+    std::vector<double>().swap(val);
 
-    HYPRE_BoomerAMGCreate(&amg);
-    HYPRE_BoomerAMGSetPrintLevel(amg, 0);
-    HYPRE_BoomerAMGSetMaxIter(amg, 1);  // one V-cycle per application, no convergence test
-    HYPRE_BoomerAMGSetTol(amg, 0.0);
-    HYPRE_BoomerAMGSetCoarsenType(amg, 10);  // HMIS
-    HYPRE_BoomerAMGSetInterpType(amg, 6);    // extended+i
-    HYPRE_BoomerAMGSetPMaxElmts(amg, opt.interp_max_elements);
-    HYPRE_BoomerAMGSetStrongThreshold(amg, opt.strong_threshold);
-    HYPRE_BoomerAMGSetAggNumLevels(amg, opt.aggressive_levels);
+    lib->HYPRE_BoomerAMGCreate(&amg);
+    lib->HYPRE_BoomerAMGSetPrintLevel(amg, 0);
+    lib->HYPRE_BoomerAMGSetMaxIter(amg, 1);  // one V-cycle per application, no convergence test
+    lib->HYPRE_BoomerAMGSetTol(amg, 0.0);
+    lib->HYPRE_BoomerAMGSetCoarsenType(amg, 10);  // HMIS
+    lib->HYPRE_BoomerAMGSetInterpType(amg, 6);    // extended+i
+    lib->HYPRE_BoomerAMGSetPMaxElmts(amg, opt.interp_max_elements);
+    lib->HYPRE_BoomerAMGSetStrongThreshold(amg, opt.strong_threshold);
+    lib->HYPRE_BoomerAMGSetAggNumLevels(amg, opt.aggressive_levels);
     // Symmetric V(1,1): l1 Gauss–Seidel forward going down, backward going up; Gaussian
     // elimination on the coarsest level.
-    HYPRE_BoomerAMGSetCycleRelaxType(amg, 13, 1);
-    HYPRE_BoomerAMGSetCycleRelaxType(amg, 14, 2);
-    HYPRE_BoomerAMGSetCycleRelaxType(amg, 9, 3);
+    lib->HYPRE_BoomerAMGSetCycleRelaxType(amg, 13, 1);
+    lib->HYPRE_BoomerAMGSetCycleRelaxType(amg, 14, 2);
+    lib->HYPRE_BoomerAMGSetCycleRelaxType(amg, 9, 3);
     method = "CG + BoomerAMG";
     std::string detail;
     if (block > 1) {
-      HYPRE_BoomerAMGSetNumFunctions(amg, block);  // dof i belongs to function i % block
+      lib->HYPRE_BoomerAMGSetNumFunctions(amg, block);  // dof i belongs to function i % block
       detail = std::to_string(block) + " functions";
       if (opt.nodal_coarsening) {
-        HYPRE_BoomerAMGSetNodal(amg, 4);      // strength from the row-sum norm of node blocks
-        HYPRE_BoomerAMGSetNodalDiag(amg, 1);  // ... with the diagonal set to −Σ off-diagonal
+        lib->HYPRE_BoomerAMGSetNodal(amg, 4);      // strength from the row-sum norm of node blocks
+        lib->HYPRE_BoomerAMGSetNodalDiag(amg, 1);  // ... with the diagonal set to −Σ off-diagonal
         detail += ", nodal";
         if (opt.rigid_body_modes && coords && block == 3) {
           add_rotations(*coords, isolated);
@@ -184,24 +190,26 @@ struct IterativeSolver::Impl {
       }
     }
     if (!detail.empty()) method += " (" + detail + ")";
-    const HYPRE_Int before = HYPRE_GetError();
-    HYPRE_BoomerAMGSetup(amg, par_a, par_r, par_z);
-    const HYPRE_Int code = HYPRE_GetError();
-    if (code != 0) {
-      char text[256] = {0};
-      HYPRE_DescribeError(code, text);
-      failure = std::string(before ? "matrix: " : "") + text;
-      HYPRE_ClearAllErrors();
-      release_hypre();
-      return false;
+    lib->HYPRE_BoomerAMGSetup(amg, par_a, par_r, par_z);
+    if (const HYPRE_Int code = lib->HYPRE_GetError()) {
+      // The matrix back into our arrays, for the Jacobi fallback.
+      ptr.assign(a.ptr, a.ptr + n + 1);
+      col.assign(a.col, a.col + ptr[n]);
+      val.assign(a.val, a.val + ptr[n]);
+      a = {n, ptr.data(), col.data(), val.data()};
+      return fail("multigrid set-up", code);
     }
-    // Our products now read hypre's copy (one rank: everything is in the diagonal part).
-    hypre_CSRMatrix* d = hypre_ParCSRMatrixDiag(reinterpret_cast<hypre_ParCSRMatrix*>(par_a));
-    a = {n, hypre_CSRMatrixI(d), hypre_CSRMatrixJ(d), hypre_CSRMatrixData(d)};
-    std::vector<int>().swap(ptr);
-    std::vector<int>().swap(col);
-    std::vector<double>().swap(val);
     return true;
+  }
+
+  /// Records hypre's message for `code` and releases everything hypre holds (with hold()).
+  bool fail(const char* phase, HYPRE_Int code) {
+    char text[256] = {0};
+    lib->HYPRE_DescribeError(code, text);
+    failure = std::string(phase) + ": " + text;
+    lib->HYPRE_ClearAllErrors();
+    release_hypre();
+    return false;
   }
 
   /// Rotations about the centroid of the nodes, zero at isolated (constrained) unknowns; the
@@ -231,22 +239,22 @@ struct IterativeSolver::Impl {
           if (isolated[3 * node + k]) u[k] = 0;
       }
     }
-    HYPRE_BoomerAMGSetInterpVecVariant(amg, 2);  // GM approach 2
-    HYPRE_BoomerAMGSetInterpVecQMax(amg, 4);
-    HYPRE_BoomerAMGSetSmoothInterpVectors(amg, 1);
-    HYPRE_BoomerAMGSetInterpRefine(amg, 1);
+    lib->HYPRE_BoomerAMGSetInterpVecVariant(amg, 2);  // GM approach 2
+    lib->HYPRE_BoomerAMGSetInterpVecQMax(amg, 4);
+    lib->HYPRE_BoomerAMGSetSmoothInterpVectors(amg, 1);
+    lib->HYPRE_BoomerAMGSetInterpRefine(amg, 1);
     // The coarse levels then hold rows of zeros, which the l1 smoothers refuse; hybrid
     // symmetric Gauss–Seidel skips them.
-    HYPRE_BoomerAMGSetRelaxType(amg, 6);
-    HYPRE_BoomerAMGSetCycleRelaxType(amg, 9, 3);
-    HYPRE_BoomerAMGSetInterpVectors(amg, static_cast<int>(par_modes.size()), par_modes.data());
+    lib->HYPRE_BoomerAMGSetRelaxType(amg, 6);
+    lib->HYPRE_BoomerAMGSetCycleRelaxType(amg, 9, 3);
+    lib->HYPRE_BoomerAMGSetInterpVectors(amg, static_cast<int>(par_modes.size()), par_modes.data());
   }
 
   void precondition(bool amg_on, const Vector& r, Vector& z, int threads) const {
     if (amg_on) {
       std::memcpy(data_of(par_r), r.data(), sizeof(double) * n);
       std::memset(data_of(par_z), 0, sizeof(double) * n);
-      HYPRE_BoomerAMGSolve(amg, par_a, par_r, par_z);
+      lib->HYPRE_BoomerAMGSolve(amg, par_a, par_r, par_z);
       std::memcpy(z.data(), data_of(par_z), sizeof(double) * n);
     } else {
       const double* pr = r.data();
@@ -268,11 +276,16 @@ const IterativeOptions& IterativeSolver::options() const { return impl_->opt; }
 
 std::string IterativeSolver::method() const { return impl_->method; }
 
+bool IterativeSolver::independent_copies() { return hypre_has_private_copy(); }
+
 void IterativeSolver::setup(const SparseMatrix& lower, int dofs_per_node,
                             const std::vector<std::array<double, 3>>* coords) {
   const auto t0 = Clock::now();
   Impl& m = *impl_;
-  m.release_hypre();
+  {
+    const auto held = m.hold();
+    m.release_hypre();
+  }
   m.ready = false;
   if (lower.rows() != lower.cols() || lower.rows() == 0)
     throw std::invalid_argument("IterativeSolver::setup: the matrix must be square and not empty");
@@ -378,6 +391,7 @@ IterativeResult IterativeSolver::solve(const Vector& b, const Vector* x0) const 
     return std::sqrt(dot(r, r, threads));
   };
   bool amg_on = m.use_amg;
+  const auto held = amg_on ? m.hold() : std::unique_lock<std::mutex>();
   double rnorm = true_residual();
   int it = 0;
   // CG on the recursively updated residual; when it claims convergence the residual is

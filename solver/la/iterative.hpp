@@ -14,7 +14,9 @@
 /// The CG iteration, its matrix products and the final residual check are ours and use OpenMP;
 /// the V-cycle runs in hypre, whose Debian build is serial. hypre is an MPI library: the first
 /// set-up initialises MPI as a singleton process when the host program has not done so (without
-/// a helper daemon), and every hypre object lives on MPI_COMM_SELF.
+/// a helper daemon), and every hypre object lives on a single-process communicator. hypre is not
+/// thread-safe; a second, private copy of it (solver/la/hypre_library.hpp) lets two solvers
+/// work at the same time, each on its own copy.
 #include <array>
 #include <memory>
 #include <string>
@@ -33,6 +35,8 @@ struct IterativeOptions {
   double rel_tol = 1e-10;      ///< on ‖b − A x‖ / ‖b‖
   int max_iterations = 2000;
   int threads = 0;             ///< for our products; 0 = OpenMP's default
+  int library_copy = 0;        ///< which copy of hypre builds and applies the V-cycle (0 or 1):
+                               ///< solvers on different copies may run at the same time
   Preconditioner preconditioner = Preconditioner::amg;
   int block_size = 0;          ///< dofs per node for AMG; 0 = the dofs_per_node given to setup
   // BoomerAMG settings (HMIS coarsening and extended+i interpolation are fixed).
@@ -76,6 +80,10 @@ class IterativeSolver {
   const IterativeOptions& options() const;
   /// What setup() built, as in IterativeResult::method.
   std::string method() const;
+
+  /// Whether two solvers with library_copy 0 and 1 run independently (a private copy of hypre
+  /// could be loaded). Where not, copy 1 is copy 0 and they take turns.
+  static bool independent_copies();
 
  private:
   struct Impl;

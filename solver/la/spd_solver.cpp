@@ -189,8 +189,8 @@ class DirectSolver final : public SpdSolver {
 
 class AmgCgSolver final : public SpdSolver {
  public:
-  AmgCgSolver(int dofs_per_node, const std::vector<std::array<double, 3>>* coords)
-      : dofs_per_node_(dofs_per_node), coords_(coords), cg_(options()) {}
+  AmgCgSolver(int dofs_per_node, const std::vector<std::array<double, 3>>* coords, SolverSlot slot)
+      : dofs_per_node_(dofs_per_node), coords_(coords), cg_(options(slot)) {}
   void analyze(const SparseMatrix&) override {}
   void factorize(const SparseMatrix& k) override {
     cg_.setup(k, dofs_per_node_, coords_);
@@ -211,11 +211,13 @@ class AmgCgSolver final : public SpdSolver {
   std::string name() const override { return cg_.method(); }
 
  private:
-  static IterativeOptions options() {
+  static IterativeOptions options(SolverSlot slot) {
     IterativeOptions o;
     // The static analysis accepts residuals below 1e-8 (static.hpp); iterate a little further.
     o.rel_tol = 1e-10;
     o.max_iterations = 3000;
+    o.library_copy = slot.library_copy;
+    o.threads = slot.threads;
     return o;
   }
   int dofs_per_node_;
@@ -225,11 +227,18 @@ class AmgCgSolver final : public SpdSolver {
 
 }  // namespace
 
+bool picks_iterative(SolverChoice choice, double n_dofs, int dofs_per_node) {
+  return choice == SolverChoice::iterative ||
+         (choice == SolverChoice::automatic && dofs_per_node == 3 && n_dofs > direct_solver_max_dofs_3d);
+}
+
+bool solvers_run_concurrently(SolverChoice choice, double n_dofs, int dofs_per_node) {
+  return picks_iterative(choice, n_dofs, dofs_per_node) && IterativeSolver::independent_copies();
+}
+
 std::unique_ptr<SpdSolver> make_spd_solver(SolverChoice choice, double n_dofs, int dofs_per_node,
-                                           const std::vector<std::array<double, 3>>* coords) {
-  const bool iterative = choice == SolverChoice::iterative ||
-                         (choice == SolverChoice::automatic && dofs_per_node == 3 && n_dofs > direct_solver_max_dofs_3d);
-  if (iterative) return std::make_unique<AmgCgSolver>(dofs_per_node, coords);
+                                           const std::vector<std::array<double, 3>>* coords, SolverSlot slot) {
+  if (picks_iterative(choice, n_dofs, dofs_per_node)) return std::make_unique<AmgCgSolver>(dofs_per_node, coords, slot);
   return std::make_unique<DirectSolver>(dofs_per_node);
 }
 

@@ -48,9 +48,25 @@ class SpdSolver {
   std::string variant_method;
 };
 
+/// Where a solver works: the copy of the library behind it (0 or 1, see
+/// solver/la/hypre_library.hpp) and the threads of its own loops (0: OpenMP's default).
+struct SolverSlot {
+  int library_copy = 0;
+  int threads = 0;
+};
+
+/// Whether make_spd_solver picks the iterative solver for such a model.
+bool picks_iterative(SolverChoice choice, double n_dofs, int dofs_per_node);
+
+/// Whether two solvers for such a model, on library copies 0 and 1, can work at the same time:
+/// the iterative solver, with a private copy of hypre loaded. (The direct solver gains more by
+/// reusing the first factor for the second model.)
+bool solvers_run_concurrently(SolverChoice choice, double n_dofs, int dofs_per_node);
+
 /// The solver for a model of n_dofs unknowns with dofs_per_node per node. `coords` (node
 /// coordinates) lets the multigrid preconditioner build rigid-body modes.
 std::unique_ptr<SpdSolver> make_spd_solver(SolverChoice choice, double n_dofs, int dofs_per_node,
-                                           const std::vector<std::array<double, 3>>* coords);
+                                           const std::vector<std::array<double, 3>>* coords,
+                                           SolverSlot slot = {});
 
 }  // namespace voidsign::solver

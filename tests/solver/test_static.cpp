@@ -251,4 +251,14 @@ TEST_CASE("a tunnel through the block: the model without voids keeps its support
   CHECK(it.iterations > 0);
   const solver::Vector da = r.voided.u - r.reference.u, db = it.voided.u - it.reference.u;
   CHECK((da - db).norm() < 1e-6 * da.norm());
+  // By default the two models ran at the same time (two copies of hypre); one after the other
+  // they give the same fields to the solver's tolerance.
+  CHECK(it.models_in_parallel);
+  CHECK(it.solver.find("at once") != std::string::npos);
+  p.models_in_parallel = false;
+  const auto one_by_one = solver::solve_static(p);
+  CHECK_FALSE(one_by_one.models_in_parallel);
+  CHECK(one_by_one.iterations == it.iterations);
+  CHECK((one_by_one.reference.u - it.reference.u).norm() < 1e-8 * it.reference.u.norm() + 1e-15);
+  CHECK((one_by_one.voided.u - it.voided.u).norm() < 1e-8 * it.voided.u.norm());
 }
