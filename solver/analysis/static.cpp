@@ -492,11 +492,11 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress) {
     }
     time.factorize += seconds_since(tf);
   };
-  auto solve_with = [](SpdSolver& s, const Vector& b) {
+  auto solve_with = [](SpdSolver& s, const Vector& b, const char* model) {
     try {
       return s.solve(b);
     } catch (const std::runtime_error& e) {
-      throw SolveFailure(e.what());
+      throw SolveFailure(std::string(model) + ": " + e.what());
     }
   };
 
@@ -505,7 +505,7 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress) {
     const auto ts = Clock::now();
     const Vector zero;
     const Vector rhs_ref = constrained_rhs(k_ref, k_ref, outer, f_ref, zero);
-    res.reference.u = solve_with(*solver, rhs_ref);
+    res.reference.u = solve_with(*solver, rhs_ref, "model without voids");
     res.reference.residual = relative_residual(k_ref, res.reference.u, rhs_ref);
     res.reference.load_norm = rhs_ref.norm();
     ref_time.solve += seconds_since(ts);
@@ -516,7 +516,7 @@ StaticResult solve_static(const StaticProblem& p, const Progress& progress) {
   auto solve_voided = [&] {
     factor(void_solver, k_void, "with voids", !second, void_time);
     const auto ts = Clock::now();
-    auto solve = [&](const Vector& b) { return solve_with(void_solver, b); };
+    auto solve = [&](const Vector& b) { return solve_with(void_solver, b, "model with voids"); };
     Vector g = Vector::Zero(nd);
     for (const Loss& l : losses) {
       const VoidLoad& vl = p.voids[static_cast<std::size_t>(l.void_id)];

@@ -262,3 +262,40 @@ TEST_CASE("a tunnel through the block: the model without voids keeps its support
   CHECK((one_by_one.reference.u - it.reference.u).norm() < 1e-8 * it.reference.u.norm() + 1e-15);
   CHECK((one_by_one.voided.u - it.voided.u).norm() < 1e-8 * it.voided.u.norm());
 }
+
+TEST_CASE("models solved at once: when both fail, the error is the model without voids', and nothing is left running") {
+  mesh::Geometry3D g;
+  g.width = 30;
+  g.length = 20;
+  g.depth = 20;
+  mesh::VoidSolid s;
+  s.kind = mesh::VoidSolid::Kind::sphere;
+  s.cz = -8;
+  s.radius = 2;
+  g.voids = {s};
+  g.sizing = {4, 1, 3, 2, 0.3};
+  const mesh::Mesh m = mesh::build_mesh_3d(g);
+  solver::StaticProblem p;
+  p.mesh = &m;
+  p.kinematics = solver::Kinematics::solid;
+  p.layers = {props(2e9, 0.25, 2000, 0.5)};
+  p.body_force = true;
+  p.voids = {solver::VoidLoad{}};
+  p.voids[0].cz = -8;
+  p.solver = solver::SolverChoice::iterative;
+  // No support anywhere: both models are free to fall under their own weight.
+  p.boundaries = {solver::Support::free, solver::Support::free, solver::Support::free};
+  try {
+    (void)solver::solve_static(p);
+    FAIL("an unsupported model was solved");
+  } catch (const solver::SolveFailure& e) {
+    const std::string message = e.what();
+    CAPTURE(message);
+    CHECK(message.rfind("model without voids: conjugate gradients", 0) == 0);
+  }
+  // Both copies of hypre are free again: the same problem, supported, solves at once.
+  p.boundaries = {};
+  const auto r = solver::solve_static(p);
+  CHECK(r.models_in_parallel);
+  CHECK(r.voided.residual < solver::max_relative_residual);
+}
