@@ -101,6 +101,8 @@ void initialise() {
       private_copy.copy = 1;
       private_copy.HYPRE_Init();
       private_loaded = true;
+    } else if (handle) {
+      dlclose(handle);
     }
   }
   std::atexit(finalize_all);
