@@ -305,7 +305,7 @@ RunEstimate estimate_for(double cells, double dofs, bool three_d) {
   if (three_d) {
     // Measured on the 3D benchmark (docs/benchmarks.md, quadratic tetrahedra, conjugate
     // gradients with BoomerAMG, the two models at once): about 5.0 GB of peak memory per
-    // million unknowns at every size from 0.23 to 1.36 M, and a whole run of about 42 s per
+    // million unknowns at every size from 0.23 to 2.07 M, and a whole run of about 42 s per
     // million, growing as DOF^1.1.
     e.memory_bytes = 5.0e9 * mdof + 100e6;
     e.seconds = 42.0 * std::pow(mdof, 1.1) + 0.2;

@@ -56,14 +56,15 @@ constexpr Density densities[] = {
 };
 
 // 3D: the demo block (gallery crossing under a road, scenarios/gallery-under-road-3d.yaml) at
-// four densities, tuned from measured counts (264 k DOF at 14.2 / 3.9 / 1.1 m, 629 k at
-// 6.0 / 1.65 / 0.47 m). The tunnel's own curvature caps its size at 0.55 m, so the coarsest
-// density cannot go much below 200 k DOF.
+// four densities, tuned from measured counts (447 k DOF at 7.2 / 1.96 / 0.56 m, 883 k at
+// 5.1 / 1.41 / 0.40 m, 1.36 M at 4.1 / 1.12 / 0.32 m: DOF ~ h^-1.9 here, the fine sizes near the
+// voids and the surface dominating). The tunnel's own curvature caps its size at 0.55 m, so the
+// coarsest density cannot go much below 200 k DOF.
 constexpr Density densities_3d[] = {
     {"200k", 200e3, 20, 6, 1.5},
-    {"500k", 500e3, 7.2, 1.96, 0.56},
-    {"1M", 1e6, 5.1, 1.41, 0.40},
-    {"2M", 2e6, 4.1, 1.12, 0.32},
+    {"500k", 500e3, 6.8, 1.85, 0.53},
+    {"1M", 1e6, 4.78, 1.32, 0.375},
+    {"2M", 2e6, 3.36, 0.917, 0.262},
 };
 
 /// The 3D benchmark scenario: the 3D demo's geometry and loads.
