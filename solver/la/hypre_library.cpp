@@ -90,15 +90,15 @@ void finalize_all() {
 }
 
 void initialise() {
-  ensure_mpi();
+  // Two copies calling into MPI from two threads need MPI_THREAD_MULTIPLE.
+  const bool threads_allowed = ensure_mpi();
   bind_linked(linked_copy);
   linked_copy.HYPRE_Init();
-  if (!std::getenv("VOIDSIGN_ONE_HYPRE")) {
+  if (threads_allowed && !std::getenv("VOIDSIGN_ONE_HYPRE")) {
     const std::string path = linked_hypre_path();
     void* handle = path.empty() ? nullptr : open_duplicate(path);
     if (handle && bind_loaded(private_copy, handle) && private_copy.HYPRE_Init != linked_copy.HYPRE_Init) {
       MPI_Comm_dup(MPI_COMM_SELF, &private_copy.comm);
-      private_copy.copy = 1;
       private_copy.HYPRE_Init();
       private_loaded = true;
     } else if (handle) {

@@ -40,12 +40,12 @@ struct HypreLibrary {
   VOIDSIGN_HYPRE_FUNCTIONS(VOIDSIGN_HYPRE_MEMBER)
 #undef VOIDSIGN_HYPRE_MEMBER
   MPI_Comm comm = MPI_COMM_SELF;  ///< every object of this copy lives here
-  int copy = 0;                   ///< 0 linked, 1 private
   std::mutex lock;
 };
 
 /// Copy 0 or 1, initialised (MPI started, HYPRE_Init called). Asking for copy 1 where it could
-/// not be loaded (or with VOIDSIGN_ONE_HYPRE set) returns copy 0.
+/// not be loaded, where MPI does not allow calls from several threads, or with
+/// VOIDSIGN_ONE_HYPRE set, returns copy 0.
 HypreLibrary& hypre_library(int copy);
 
 /// Whether copy 1 is a copy of its own (loaded on first call).
