@@ -7,9 +7,9 @@
 #include <algorithm>
 #include <chrono>
 #include <cmath>
-#include <limits>
 #include <exception>
 #include <future>
+#include <limits>
 #include <mutex>
 #include <sstream>
 

@@ -225,12 +225,13 @@ class AmgCgSolver final : public SpdSolver {
   IterativeSolver cg_;
 };
 
-}  // namespace
-
+/// Whether make_spd_solver picks the iterative solver for such a model.
 bool picks_iterative(SolverChoice choice, double n_dofs, int dofs_per_node) {
   return choice == SolverChoice::iterative ||
          (choice == SolverChoice::automatic && dofs_per_node == 3 && n_dofs > direct_solver_max_dofs_3d);
 }
+
+}  // namespace
 
 bool solvers_run_concurrently(SolverChoice choice, double n_dofs, int dofs_per_node) {
   return picks_iterative(choice, n_dofs, dofs_per_node) && IterativeSolver::independent_copies();

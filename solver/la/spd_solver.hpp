@@ -55,9 +55,6 @@ struct SolverSlot {
   int threads = 0;
 };
 
-/// Whether make_spd_solver picks the iterative solver for such a model.
-bool picks_iterative(SolverChoice choice, double n_dofs, int dofs_per_node);
-
 /// Whether two solvers for such a model, on library copies 0 and 1, can work at the same time:
 /// the iterative solver, with a private copy of hypre loaded. (The direct solver gains more by
 /// reusing the first factor for the second model.)
